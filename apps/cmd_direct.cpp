@@ -1,0 +1,89 @@
+#include "command_line.hpp"
+#include "commands.hpp"
+
+#include <rastrum/atomic_file.hpp>
+#include <rastrum/direct_results.hpp>
+#include <rastrum/errors.hpp>
+#include <rastrum/parallel.hpp>
+#include <rastrum/recording_hdf5.hpp>
+#include <rastrum/sha256.hpp>
+
+#include <iostream>
+
+namespace rastrum::app {
+
+int run_direct(int argc, char** argv) {
+    const direct_request defaults;
+    std::string file, bin_text, letters_text, fit_text, stimulus, json_out, csv_out, subset_text;
+    direct_request request;
+    bool quiet = false;
+    po::options_description options("Options");
+    options.add_options()
+        ("file", po::value(&file)->required(), "the recording (HDF5, native layout)")
+        ("unit", po::value(&request.units)->composing(), "analyse this unit (repeat for several); every unit when absent")
+        ("stimulus", po::value(&stimulus), "only trials with this stimulus label (the frozen stimulus); all trials when absent")
+        ("bin-ms", po::value(&bin_text)->required(), "bin width(s) in ms, comma-separated, e.g. 1,2,4")
+        ("letters", po::value(&letters_text)->required(), "word lengths A-B in letters (bins), e.g. 1-12")
+        ("binary", po::bool_switch(&request.binary), "clip letters to 0/1 (spike or no spike) instead of spike counts")
+        ("fit-letters", po::value(&fit_text),
+         "word lengths A-B for the extrapolation to infinite word length; by default the upper half of the "
+         "well-sampled lengths (see --bias-tolerance)")
+        ("bias-tolerance", po::value(&request.settings.bias_tolerance)->default_value(defaults.settings.bias_tolerance),
+         "sampling rule: a word length is well sampled when the extrapolations from plug-in and from jackknife "
+         "estimates agree on its information within this fraction of it (or of twice its standard error, if larger)")
+        ("subset-estimator", po::value(&subset_text)->default_value(subset_estimator_name(defaults.settings.subsets)),
+         "entropy estimator on each subset of trials before the extrapolation to infinite data: plug-in, miller-madow or jackknife")
+        ("splits", po::value(&request.settings.splits)->default_value(defaults.settings.splits),
+         "random nested splits of the trials (halves, quarters, eighths) for the extrapolation and the interval")
+        ("seed", po::value(&request.settings.seed)->default_value(defaults.settings.seed), "seed of the random splits")
+        ("threads", po::value(&request.threads)->default_value(0), "worker threads (0: one per core); results do not depend on it")
+        ("json", po::value(&json_out), "write results as JSON to this file ('-' for stdout instead of the table)")
+        ("csv", po::value(&csv_out), "write tidy CSV to this file: one row per unit, bin width and word length")
+        ("quiet,q", po::bool_switch(&quiet), "no table and no progress lines");
+    po::positional_options_description positional;
+    positional.add("file", 1);
+    po::variables_map vm;
+    if (!parse_command(argc, argv, "direct",
+                       "FILE --bin-ms B[,B...] --letters A-B [--unit ID]... [--stimulus LABEL] [--binary] "
+                       "[--fit-letters A-B] [--seed N] [--threads N] [--json OUT] [--csv OUT]",
+                       options, positional, vm)) {
+        return 0;
+    }
+    request.bin_ms = parse_number_list(bin_text, "--bin-ms");
+    std::tie(request.settings.letters_min, request.settings.letters_max) = parse_int_range(letters_text, "--letters");
+    if (vm.count("fit-letters")) request.settings.fit_letters = parse_int_range(fit_text, "--fit-letters");
+    if (vm.count("stimulus")) request.stimulus = stimulus;
+    request.settings.subsets = parse_subset_estimator(subset_text);
+    const std::optional<std::string> json_path = vm.count("json") ? std::optional(json_out) : std::nullopt;
+    const std::optional<std::string> csv_path = vm.count("csv") ? std::optional(csv_out) : std::nullopt;
+    if (csv_path && *csv_path == "-") throw usage_error("--csv needs a file name");
+    check_direct_request(request);
+    check_output_paths({json_path, csv_path}, {file});
+
+    provenance origin;
+    origin.command_line = joined_command_line(argc + 1, argv - 1);
+    origin.input_path = file;
+    origin.started_utc = utc_now();
+    origin.threads = effective_threads(request.threads);
+    const recording rec = read_recording_hdf5(file);
+    origin.input_sha256 = file_sha256(file);
+    for (const auto& w: rec.warnings) note(quiet, "warning: " + w);
+
+    const auto records = run_direct(rec, request);
+    origin.finished_utc = utc_now();
+
+    const std::string json_text = direct_json(records, request, origin).dump(2) + "\n";
+    std::vector<std::pair<std::string, std::string>> files;
+    if (json_path && *json_path != "-") files.emplace_back(*json_path, json_text);
+    if (csv_path) files.emplace_back(*csv_path, direct_csv(records));
+    write_texts_atomically(files);
+    if (json_path && *json_path == "-") {
+        std::cout << json_text;
+    } else if (!quiet) {
+        std::cout << direct_table(records, request);
+    }
+    for (const auto& [path, text]: files) note(quiet, "wrote " + path);
+    return 0;
+}
+
+}  // namespace rastrum::app

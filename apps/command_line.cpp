@@ -1,0 +1,122 @@
+#include "command_line.hpp"
+
+#include <rastrum/errors.hpp>
+
+#include <cmath>
+#include <filesystem>
+#include <iostream>
+#include <set>
+
+namespace rastrum::app {
+
+namespace {
+int parse_int(const std::string& text, const std::string& option) {
+    std::size_t used = 0;
+    int value = 0;
+    try {
+        value = std::stoi(text, &used);
+    } catch (const std::exception&) {
+        used = 0;
+    }
+    if (used == 0 || used != text.size()) throw usage_error(option + ": '" + text + "' is not a whole number");
+    return value;
+}
+}  // namespace
+
+std::pair<int, int> parse_int_range(const std::string& text, const std::string& option) {
+    const auto dash = text.find('-', 1);
+    if (dash == std::string::npos) {
+        const int v = parse_int(text, option);
+        return {v, v};
+    }
+    return {parse_int(text.substr(0, dash), option), parse_int(text.substr(dash + 1), option)};
+}
+
+std::vector<std::string> parse_text_list(const std::string& text, const std::string& option) {
+    std::vector<std::string> items;
+    std::size_t start = 0;
+    while (true) {
+        const auto comma = text.find(',', start);
+        std::string item = text.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+        if (item.empty()) throw usage_error(option + ": empty item in '" + text + "'");
+        items.push_back(item);
+        if (comma == std::string::npos) break;
+        start = comma + 1;
+    }
+    return items;
+}
+
+std::vector<double> parse_number_list(const std::string& text, const std::string& option) {
+    std::vector<double> values;
+    for (const auto& item: parse_text_list(text, option)) {
+        std::size_t used = 0;
+        double v = 0;
+        try {
+            v = std::stod(item, &used);
+        } catch (const std::exception&) {
+            used = 0;
+        }
+        if (used == 0 || used != item.size() || !std::isfinite(v)) {
+            throw usage_error(option + ": '" + item + "' is not a number");
+        }
+        values.push_back(v);
+    }
+    return values;
+}
+
+bool parse_command(int argc, char** argv, const std::string& command, const std::string& synopsis,
+                   const po::options_description& options, const po::positional_options_description& positional,
+                   po::variables_map& vm) {
+    po::options_description all;
+    all.add(options);
+    all.add_options()("help,h", "show this help and exit");
+    try {
+        po::store(po::command_line_parser(argc, argv).options(all).positional(positional).run(), vm);
+        if (vm.count("help")) {
+            std::cout << "Usage: rastrum " << command << " " << synopsis << "\n\n" << all << "\n"
+                      << "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
+                         "4 the data cannot support the analysis. Outputs are written whole or not at all.\n";
+            return false;
+        }
+        po::notify(vm);
+    } catch (const po::error& e) {
+        throw usage_error(e.what());
+    }
+    return true;
+}
+
+std::string joined_command_line(int argc, char** argv) {
+    std::string line;
+    for (int i = 0; i < argc; ++i) {
+        if (i) line += ' ';
+        std::string a = argv[i];
+        if (a.find_first_of(" \t'\"") != std::string::npos) a = "'" + a + "'";
+        line += a;
+    }
+    return line;
+}
+
+void check_output_paths(const std::vector<std::optional<std::string>>& outputs, const std::vector<std::string>& inputs) {
+    namespace fs = std::filesystem;
+    std::set<fs::path> input_paths, output_paths;
+    std::error_code ec;
+    for (const auto& in: inputs) input_paths.insert(fs::weakly_canonical(in, ec));
+    for (const auto& out: outputs) {
+        if (!out || *out == "-") continue;
+        const fs::path p(*out);
+        const fs::path canonical = fs::weakly_canonical(p, ec);
+        if (input_paths.count(canonical)) throw usage_error("output " + *out + " would overwrite an input");
+        if (!output_paths.insert(canonical).second) throw usage_error("output " + *out + " is named twice");
+        const fs::path folder = p.has_parent_path() ? p.parent_path() : fs::path(".");
+        if (!fs::is_directory(folder, ec)) {
+            throw usage_error("output " + *out + ": folder " + folder.string() + " does not exist");
+        }
+        if (fs::is_directory(p, ec)) throw usage_error("output " + *out + " is a folder");
+    }
+}
+
+void note(bool quiet, const std::string& text) {
+    if (!quiet) std::cerr << text << "\n";
+}
+
+}  // namespace rastrum::app

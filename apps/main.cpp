@@ -1,0 +1,70 @@
+// rastrum: the command. Parses the subcommand, runs it, and maps every failure to one exit code
+// (documented in --help and README): 0 success, 1 unexpected, 2 usage, 3 invalid input,
+// 4 data that cannot support the analysis.
+#include "commands.hpp"
+
+#include <rastrum/errors.hpp>
+#include <rastrum/version.hpp>
+
+#include <cstring>
+#include <iostream>
+#include <string>
+
+namespace {
+
+constexpr int exit_unexpected = 1, exit_usage = 2, exit_input = 3, exit_insufficient = 4;
+
+void print_overview() {
+    std::cout << "rastrum " << rastrum::version()
+              << ": how much information spike trains carry about a stimulus\n\n"
+                 "Usage: rastrum COMMAND [options]\n\n"
+                 "Commands:\n"
+                 "  survey   what a recording holds: units, spikes in and outside trials, trials, labels\n"
+                 "  direct   direct method: information rate (bits/s) and bits per spike about a repeated\n"
+                 "           stimulus, extrapolated to infinite data and word length\n"
+                 "  synth    write a synthetic recording with known answers\n\n"
+                 "'rastrum COMMAND --help' describes each command.\n\n"
+                 "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
+                 "4 the data cannot support the analysis.\n";
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+    if (argc < 2) {
+        print_overview();
+        return exit_usage;
+    }
+    const std::string command = argv[1];
+    if (command == "--help" || command == "-h" || command == "help") {
+        print_overview();
+        return 0;
+    }
+    if (command == "--version") {
+        std::cout << "rastrum " << rastrum::version() << "\n";
+        return 0;
+    }
+    try {
+        // argv + 1: each subcommand sees its own name as argv[0].
+        if (command == "survey") return rastrum::app::run_survey(argc - 1, argv + 1);
+        if (command == "direct") return rastrum::app::run_direct(argc - 1, argv + 1);
+        if (command == "synth") return rastrum::app::run_synth(argc - 1, argv + 1);
+        std::cerr << "rastrum: error: unknown command '" << command << "'\nTry 'rastrum --help'.\n";
+        return exit_usage;
+    } catch (const rastrum::usage_error& e) {
+        std::cerr << "rastrum " << command << ": error: " << e.what() << "\nTry 'rastrum " << command << " --help'.\n";
+        return exit_usage;
+    } catch (const rastrum::input_error& e) {
+        std::cerr << "rastrum " << command << ": error: invalid input: " << e.what() << "\n";
+        return exit_input;
+    } catch (const rastrum::insufficient_data& e) {
+        std::cerr << "rastrum " << command << ": error: the data cannot support this analysis: " << e.what() << "\n";
+        return exit_insufficient;
+    } catch (const std::bad_alloc&) {
+        std::cerr << "rastrum " << command << ": error: out of memory\n";
+        return exit_unexpected;
+    } catch (const std::exception& e) {
+        std::cerr << "rastrum " << command << ": error: " << e.what() << "\n";
+        return exit_unexpected;
+    }
+}

@@ -1,0 +1,155 @@
+// End-to-end: the real rastrum command in a child process, on real files.
+#include "cli_runner.hpp"
+
+#include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
+
+#include <filesystem>
+#include <fstream>
+
+using namespace rastrum::testing;
+using nlohmann::json;
+
+namespace {
+
+// One small synthetic recording shared by the tests below.
+std::string small_recording() {
+    static const std::string path = [] {
+        const std::string folder = fresh_folder("cli-shared");
+        const std::string p = folder + "/small.h5";
+        const auto r = run_rastrum("synth frozen-bins --out '" + p +
+                                   "' --trials 40 --duration-s 2 --rate-hz 20,30 --modulation 1.5 --seed 4");
+        EXPECT_EQ(r.exit_code, 0) << r.err;
+        return p;
+    }();
+    return path;
+}
+
+}  // namespace
+
+TEST(cli, help_documents_commands_options_and_exit_codes) {
+    const auto top = run_rastrum("--help");
+    EXPECT_EQ(top.exit_code, 0);
+    for (const char* word: {"survey", "direct", "synth", "Exit codes"}) EXPECT_NE(top.out.find(word), std::string::npos) << word;
+    const auto direct = run_rastrum("direct --help");
+    EXPECT_EQ(direct.exit_code, 0);
+    for (const char* option: {"--unit", "--stimulus", "--bin-ms", "--letters", "--binary", "--fit-letters", "--seed",
+                              "--threads", "--json", "--csv", "--bias-tolerance", "--subset-estimator", "--splits"}) {
+        EXPECT_NE(direct.out.find(option), std::string::npos) << option;
+    }
+    EXPECT_NE(direct.out.find("4 the data cannot support"), std::string::npos);
+    EXPECT_EQ(run_rastrum("").exit_code, 2);
+    EXPECT_EQ(run_rastrum("frobnicate").exit_code, 2);
+}
+
+TEST(cli, synth_writes_the_recording_and_its_answers) {
+    const std::string folder = fresh_folder("cli-synth");
+    const auto r = run_rastrum("synth conditions --out " + folder + "/c.h5 --means 1,2,3,4 --means 5,5,5,5");
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const json answers = json::parse(read_file(folder + "/c.answers.json"));
+    EXPECT_EQ(answers["kind"], "conditions");
+    ASSERT_EQ(answers["units"].size(), 2u);
+    EXPECT_NEAR(answers["units"][1]["count_info_bits"].get<double>(), 0.0, 1e-12);
+    const auto s = run_rastrum("survey " + folder + "/c.h5 --json -");
+    ASSERT_EQ(s.exit_code, 0) << s.err;
+    const json survey = json::parse(s.out);
+    EXPECT_EQ(survey["trials"]["count"], 120);
+    EXPECT_EQ(survey["stimulus_labels"]["a"], 30);
+    EXPECT_EQ(run_rastrum("synth sideways --out " + folder + "/x.h5").exit_code, 2);
+    EXPECT_FALSE(file_exists(folder + "/x.h5"));
+}
+
+TEST(cli, survey_counts_spikes_outside_trials) {
+    const auto r = run_rastrum("survey " + small_recording());
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NE(r.out.find("outside"), std::string::npos);
+    EXPECT_NE(r.out.find("trials: 40"), std::string::npos) << r.out;
+}
+
+TEST(cli, direct_writes_stable_json_and_tidy_csv) {
+    const std::string folder = fresh_folder("cli-direct");
+    const auto r = run_rastrum("direct " + small_recording() + " --bin-ms 2,4 --letters 1-6 --json " + folder +
+                               "/d.json --csv " + folder + "/d.csv --threads 2");
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    EXPECT_NE(r.out.find("info b/s"), std::string::npos) << "the readable table goes to stdout";
+    const json d = json::parse(read_file(folder + "/d.json"));
+    for (const char* key: {"tool", "version", "analysis", "input", "parameters", "records"}) EXPECT_TRUE(d.contains(key)) << key;
+    EXPECT_EQ(d["analysis"], "direct");
+    EXPECT_EQ(d["input"]["sha256"].get<std::string>().size(), 64u);
+    EXPECT_EQ(d["parameters"]["seed"], 1);
+    ASSERT_EQ(d["records"].size(), 4u);  // 2 units x 2 bin widths
+    const json& rec = d["records"][0];
+    for (const char* key: {"unit", "stimulus", "bin_ms", "trials", "trial_duration_s", "mean_rate_hz", "by_letters",
+                           "fit_letters", "total_entropy_rate_bits_per_s", "noise_entropy_rate_bits_per_s",
+                           "info_rate_bits_per_s", "info_rate_ci95_bits_per_s", "bits_per_spike", "coding_efficiency",
+                           "warnings"}) {
+        EXPECT_TRUE(rec.contains(key)) << key;
+    }
+    ASSERT_EQ(rec["by_letters"].size(), 6u);
+    for (const char* key: {"letters", "samples", "distinct_words", "total_entropy_bits", "noise_entropy_bits",
+                           "info_bits", "total_entropy_plugin_bits", "noise_entropy_plugin_bits"}) {
+        EXPECT_TRUE(rec["by_letters"][0].contains(key)) << key;
+    }
+    EXPECT_FALSE(rec["warnings"].empty()) << "40 trials must carry a caution";
+    // Tidy CSV: a header and one row per (unit, bin width, word length).
+    const std::string csv = read_file(folder + "/d.csv");
+    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 1 + 2 * 2 * 6);
+    EXPECT_EQ(csv.rfind("unit,stimulus,bin_ms,", 0), 0u);
+}
+
+TEST(cli, same_results_for_one_and_two_threads) {
+    const std::string folder = fresh_folder("cli-threads");
+    const std::string base = "direct " + small_recording() + " --bin-ms 2 --letters 1-5 --quiet --json ";
+    ASSERT_EQ(run_rastrum(base + folder + "/one.json --threads 1").exit_code, 0);
+    ASSERT_EQ(run_rastrum(base + folder + "/two.json --threads 2").exit_code, 0);
+    json one = json::parse(read_file(folder + "/one.json")), two = json::parse(read_file(folder + "/two.json"));
+    EXPECT_EQ(one["records"], two["records"]);
+}
+
+TEST(cli, usage_errors_exit_2_and_write_nothing) {
+    const std::string folder = fresh_folder("cli-usage");
+    const std::string out = " --json " + folder + "/d.json";
+    for (const std::string bad: {" --bin-ms 2", " --letters 1-4", " --bin-ms x --letters 1-4", " --bin-ms 2 --letters 4-1",
+                                 " --bin-ms -2 --letters 1-4", " --bin-ms 2 --letters 1-4 --fit-letters 2-9",
+                                 " --bin-ms 2 --letters 1-4 --unit nosuch", " --bin-ms 2 --letters 1-4 --stimulus nosuch",
+                                 " --bin-ms 2 --letters 1-4 --subset-estimator guess", " --bin-ms 2 --letters 1-4 --bogus"}) {
+        const auto r = run_rastrum("direct " + small_recording() + bad + out);
+        EXPECT_EQ(r.exit_code, 2) << bad << "\n" << r.err;
+        EXPECT_NE(r.err.find("error"), std::string::npos) << bad;
+        EXPECT_FALSE(file_exists(folder + "/d.json")) << bad;
+    }
+    const auto no_folder = run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --json " + folder + "/no/d.json");
+    EXPECT_EQ(no_folder.exit_code, 2);
+    EXPECT_NE(no_folder.err.find("does not exist"), std::string::npos);
+    const auto onto_input = run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --json " + small_recording());
+    EXPECT_EQ(onto_input.exit_code, 2);
+    EXPECT_NE(onto_input.err.find("overwrite an input"), std::string::npos);
+}
+
+TEST(cli, invalid_input_exits_3_and_keeps_existing_outputs) {
+    const std::string folder = fresh_folder("cli-invalid");
+    {
+        std::ofstream(folder + "/not.h5") << "this is not HDF5\n";
+        std::ofstream(folder + "/keep.json") << "previous results\n";
+    }
+    const auto r = run_rastrum("direct " + folder + "/not.h5 --bin-ms 2 --letters 1-4 --json " + folder + "/keep.json");
+    EXPECT_EQ(r.exit_code, 3) << r.err;
+    EXPECT_NE(r.err.find("not.h5"), std::string::npos) << r.err;
+    EXPECT_EQ(read_file(folder + "/keep.json"), "previous results\n") << "a failure must not clobber outputs";
+    const auto missing = run_rastrum("survey " + folder + "/absent.h5");
+    EXPECT_EQ(missing.exit_code, 3);
+    EXPECT_NE(missing.err.find("absent.h5"), std::string::npos);
+    // No temporary files are left behind.
+    for (const auto& entry: std::filesystem::directory_iterator(folder)) {
+        EXPECT_EQ(entry.path().string().find(".tmp-"), std::string::npos) << entry.path();
+    }
+}
+
+TEST(cli, too_little_data_exits_4_without_output) {
+    const std::string folder = fresh_folder("cli-insufficient");
+    ASSERT_EQ(run_rastrum("synth frozen-bins --out " + folder + "/few.h5 --trials 4 --duration-s 1").exit_code, 0);
+    const auto r = run_rastrum("direct " + folder + "/few.h5 --bin-ms 2 --letters 1-4 --json " + folder + "/d.json");
+    EXPECT_EQ(r.exit_code, 4) << r.err;
+    EXPECT_NE(r.err.find("at least 8 trials"), std::string::npos) << r.err;
+    EXPECT_FALSE(file_exists(folder + "/d.json"));
+}

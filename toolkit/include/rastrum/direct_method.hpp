@@ -1,0 +1,93 @@
+#pragma once
+/// The direct method (Strong, Koberle, de Ruyter van Steveninck & Bialek 1998, Phys. Rev. Lett.
+/// 80:197) for one spike train at one bin width: the response to a frozen stimulus repeated over
+/// trials is cut into words; the total entropy of words pooled over start times and trials, minus
+/// the noise entropy of the word at each start time across trials, is the information. Both are
+/// extrapolated to infinite data (in 1/N) and their rates to infinite word length (in 1/L).
+/// The formulas, the rule that picks the word lengths of the 1/L fit, and the evidence for that
+/// rule are in notes/methods.md.
+#include <rastrum/binning.hpp>
+#include <rastrum/types.hpp>
+
+#include <array>
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <utility>
+#include <vector>
+
+namespace rastrum {
+
+/// The estimator applied to each subset of trials before the extrapolation to infinite data.
+enum class subset_estimator { plugin = 0, miller_madow = 1, jackknife = 2 };
+inline constexpr int subset_estimator_count = 3;
+
+/// "plug-in", "miller-madow" or "jackknife"; and back (throws usage_error on other text).
+const char* subset_estimator_name(subset_estimator e);
+subset_estimator parse_subset_estimator(const std::string& name);
+
+struct direct_settings {
+    int letters_min = 1;                            // word lengths analysed: letters_min..letters_max
+    int letters_max = 10;
+    std::optional<std::pair<int, int>> fit_letters; // lengths of the 1/L fit; chosen by rule when empty
+    unsigned splits = 8;                            // random nested splits of the trials
+    subset_estimator subsets = subset_estimator::jackknife;
+    /// The sampling rule: a word length is well sampled when two extrapolations to infinite data,
+    /// from plug-in and from jackknife estimates on the subsets, agree on its information within
+    /// this fraction of that information, or of twice its standard error when that is larger
+    /// (see notes/methods.md).
+    double bias_tolerance = 0.03;
+    std::uint64_t seed = 1;
+};
+
+/// Per-word values (bits per word) at one word length.
+struct letters_estimate {
+    int letters = 0;
+    count samples = 0;            // words in the total ensemble: trials x start positions
+    count distinct_words = 0;     // distinct words among them
+    double total_bits = 0;        // extrapolated to infinite data
+    double noise_bits = 0;
+    double info_bits = 0;         // total_bits - noise_bits
+    double total_plugin_bits = 0; // on all trials, no correction
+    double noise_plugin_bits = 0;
+    double total_miller_madow_bits = 0;
+    double noise_miller_madow_bits = 0;
+    std::array<double, subset_estimator_count> info_bits_by_estimator{};  // each extrapolated to infinite data
+    double estimator_spread_bits = 0; // |plug-in based - jackknife based| information: the bias scale
+    double info_se_bits = 0;      // standard error of info_bits from its spread over random halves
+    double info_half_bits = 0;    // mean over random halves of the trials, each extrapolated alike
+    bool well_sampled = false;    // estimator_spread_bits within the sampling rule's tolerance
+};
+
+/// The three parts of the information rate's standard error (bits/s), combined in quadrature.
+struct rate_uncertainty {
+    double resampling = 0;   // spread of the whole estimate over random halves of the trials, / sqrt 2
+    double data_size = 0;    // how far the estimate moves from all trials to half of them
+    double word_length = 0;  // standard error of the 1/L intercept
+    double bias_correction = 0;  // half the distance between the rates from plug-in and jackknife subsets
+};
+
+struct direct_estimate {
+    seconds bin_width = 0;
+    std::size_t trials = 0;
+    std::vector<letters_estimate> by_letters;
+    std::pair<int, int> fit_letters{0, 0};
+    bool fit_letters_from_user = false;
+    double total_rate = 0;   // [bits/s] extrapolated to infinite data and word length
+    double noise_rate = 0;   // [bits/s]
+    double info_rate = 0;    // [bits/s]
+    double info_rate_se = 0; // [bits/s]
+    rate_uncertainty uncertainty;
+    std::pair<double, double> info_rate_ci95{0, 0};
+    std::vector<double> half_info_rates;  // the estimate on each random half of the trials [bits/s]
+    std::vector<std::string> warnings;
+};
+
+/// Needs at least 8 trials and at least `letters_max` bins (throws insufficient_data saying what
+/// is missing); throws usage_error for an impossible range or a fit range outside it.
+direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width, const direct_settings& settings);
+
+/// Checks a settings object before any data are read. Throws usage_error naming the setting.
+void check_direct_settings(const direct_settings& settings);
+
+}  // namespace rastrum

@@ -1,0 +1,17 @@
+#pragma once
+/// Deterministic parallelism: tasks are numbered, each writes only its own result slot, so the
+/// outcome is the same for any number of threads.
+#include <cstddef>
+#include <functional>
+
+namespace rastrum {
+
+/// Runs task(i) for i in [0, n) on up to `threads` threads (0 means the hardware's count).
+/// The first exception thrown by any task is rethrown here after all threads have stopped;
+/// tasks not yet started are then skipped.
+void parallel_for(std::size_t n, unsigned threads, const std::function<void(std::size_t)>& task);
+
+/// The number of threads `parallel_for` uses for a request of `threads`.
+unsigned effective_threads(unsigned threads);
+
+}  // namespace rastrum

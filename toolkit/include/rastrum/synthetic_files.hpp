@@ -1,0 +1,19 @@
+#pragma once
+/// Synthetic recordings on disk: the recording in the native layout and its exact answers as
+/// JSON beside it (`name.h5` -> `name.answers.json`).
+#include <rastrum/synthetic.hpp>
+
+#include <nlohmann/json.hpp>
+#include <string>
+
+namespace rastrum {
+
+std::string answers_path_for(const std::string& recording_path);
+
+nlohmann::ordered_json synthetic_answers_json(const synthetic_recording& synth, const nlohmann::ordered_json& parameters);
+
+/// Writes both files; neither is left changed when either cannot be written.
+void write_synthetic(const synthetic_recording& synth, const std::string& recording_path,
+                     const nlohmann::ordered_json& parameters);
+
+}  // namespace rastrum

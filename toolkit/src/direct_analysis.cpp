@@ -1,0 +1,101 @@
+#include <rastrum/direct_analysis.hpp>
+#include <rastrum/errors.hpp>
+#include <rastrum/parallel.hpp>
+#include <rastrum/random.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <cstring>
+#include <limits>
+
+namespace rastrum {
+
+void check_direct_request(const direct_request& request) {
+    if (request.bin_ms.empty()) throw usage_error("--bin-ms: give at least one bin width");
+    for (double b: request.bin_ms) {
+        if (!(b > 0) || !std::isfinite(b)) throw usage_error("--bin-ms: bin widths must be positive, got " + std::to_string(b));
+    }
+    check_direct_settings(request.settings);
+}
+
+namespace {
+
+std::uint64_t bits_of(double x) {
+    std::uint64_t u;
+    std::memcpy(&u, &x, sizeof u);
+    return u;
+}
+
+seconds common_duration(const recording& rec, const std::vector<std::size_t>& trials) {
+    seconds d = std::numeric_limits<seconds>::infinity();
+    for (std::size_t k: trials) d = std::min(d, rec.trial_stop[k] - rec.trial_start[k]);
+    return d;
+}
+
+count spikes_before(const std::vector<std::vector<seconds>>& aligned, seconds end) {
+    count n = 0;
+    for (const auto& trial: aligned) {
+        n += static_cast<count>(std::lower_bound(trial.begin(), trial.end(), end) - trial.begin());
+    }
+    return n;
+}
+
+}  // namespace
+
+std::vector<direct_record> run_direct(const recording& rec, const direct_request& request) {
+    check_direct_request(request);
+    std::vector<const unit_spikes*> units;
+    if (request.units.empty()) {
+        for (const auto& u: rec.units) units.push_back(&u);
+    } else {
+        for (const auto& id: request.units) units.push_back(&rec.unit(id));
+    }
+    const std::vector<std::size_t> trials = select_trials(rec, request.stimulus);
+    if (trials.size() < 2) {
+        throw insufficient_data("the direct method needs repeated trials; " + std::to_string(trials.size()) +
+                                " selected");
+    }
+    const seconds duration = common_duration(rec, trials);
+
+    std::vector<std::vector<std::vector<seconds>>> aligned(units.size());
+    for (std::size_t u = 0; u < units.size(); ++u) aligned[u] = align_to_trials(units[u]->spike_times, rec, trials);
+
+    const std::size_t n_bins = request.bin_ms.size();
+    std::vector<direct_record> records(units.size() * n_bins);
+    parallel_for(records.size(), request.threads, [&](std::size_t task) {
+        const std::size_t u = task / n_bins;
+        const double bin_ms = request.bin_ms[task % n_bins];
+        const seconds bin_width = bin_ms / 1000.0;
+        direct_record& r = records[task];
+        r.unit = units[u]->id;
+        r.stimulus = request.stimulus;
+        r.bin_ms = bin_ms;
+        r.trials = trials.size();
+        r.trial_duration = duration;
+        const std::size_t bins = whole_bins(duration, bin_width);
+        const letter_matrix letters = bin_spikes(aligned[u], bin_width, bins, request.binary);
+        const seconds analysed = static_cast<double>(bins) * bin_width;
+        const count spikes = spikes_before(aligned[u], analysed);
+        r.mean_rate_hz = static_cast<double>(spikes) / (static_cast<double>(trials.size()) * analysed);
+
+        direct_settings settings = request.settings;
+        // Each task's randomness depends only on its own unit and bin width.
+        settings.seed = derive_seed(request.settings.seed, {text_hash(r.unit), bits_of(bin_ms)});
+        r.estimate = estimate_direct(letters, bin_width, settings);
+        const double nan = std::numeric_limits<double>::quiet_NaN();
+        r.bits_per_spike = spikes > 0 ? r.estimate.info_rate / r.mean_rate_hz : nan;
+        r.coding_efficiency = r.estimate.total_rate > 0 ? r.estimate.info_rate / r.estimate.total_rate : nan;
+        r.warnings = r.estimate.warnings;
+        if (spikes == 0) r.warnings.push_back("no spikes in the analysed trials: bits per spike undefined");
+        else if (spikes < 200) {
+            r.warnings.push_back("only " + std::to_string(spikes) + " spikes in the analysed trials: estimates are rough");
+        }
+        if (request.binary && letters.spikes < spikes) {
+            r.warnings.push_back("binary letters dropped " + std::to_string(spikes - letters.spikes) +
+                                 " spikes that shared a bin with another");
+        }
+    });
+    return records;
+}
+
+}  // namespace rastrum

@@ -1,0 +1,195 @@
+#include <rastrum/direct_results.hpp>
+#include <rastrum/version.hpp>
+
+#include <cmath>
+#include <cstdio>
+#include <ctime>
+#include <sstream>
+
+namespace rastrum {
+
+std::string utc_now() {
+    const std::time_t now = std::time(nullptr);
+    std::tm tm{};
+    gmtime_r(&now, &tm);
+    char text[32];
+    std::strftime(text, sizeof text, "%Y-%m-%dT%H:%M:%SZ", &tm);
+    return text;
+}
+
+namespace {
+using json = nlohmann::ordered_json;
+
+json number_or_null(double x) { return std::isfinite(x) ? json(x) : json(nullptr); }
+
+json letters_json(const letters_estimate& le) {
+    return {{"letters", le.letters},
+            {"samples", le.samples},
+            {"distinct_words", le.distinct_words},
+            {"total_entropy_bits", le.total_bits},
+            {"noise_entropy_bits", le.noise_bits},
+            {"info_bits", le.info_bits},
+            {"total_entropy_plugin_bits", le.total_plugin_bits},
+            {"noise_entropy_plugin_bits", le.noise_plugin_bits},
+            {"total_entropy_miller_madow_bits", le.total_miller_madow_bits},
+            {"noise_entropy_miller_madow_bits", le.noise_miller_madow_bits},
+            {"info_bits_by_subset_estimator",
+             {{"plug-in", le.info_bits_by_estimator[0]},
+              {"miller-madow", le.info_bits_by_estimator[1]},
+              {"jackknife", le.info_bits_by_estimator[2]}}},
+            {"estimator_spread_bits", le.estimator_spread_bits},
+            {"info_se_bits", le.info_se_bits},
+            {"info_half_trials_bits", le.info_half_bits},
+            {"well_sampled", le.well_sampled}};
+}
+
+json record_json(const direct_record& r) {
+    const direct_estimate& e = r.estimate;
+    json by_letters = json::array();
+    for (const auto& le: e.by_letters) by_letters.push_back(letters_json(le));
+    return {{"unit", r.unit},
+            {"stimulus", r.stimulus ? json(*r.stimulus) : json(nullptr)},
+            {"bin_ms", r.bin_ms},
+            {"trials", r.trials},
+            {"trial_duration_s", r.trial_duration},
+            {"mean_rate_hz", r.mean_rate_hz},
+            {"by_letters", by_letters},
+            {"fit_letters", {e.fit_letters.first, e.fit_letters.second}},
+            {"fit_letters_from", e.fit_letters_from_user ? "option" : "sampling rule"},
+            {"total_entropy_rate_bits_per_s", e.total_rate},
+            {"noise_entropy_rate_bits_per_s", e.noise_rate},
+            {"info_rate_bits_per_s", e.info_rate},
+            {"info_rate_se_bits_per_s", e.info_rate_se},
+            {"info_rate_se_parts_bits_per_s",
+             {{"resampling", e.uncertainty.resampling},
+              {"data_size_extrapolation", e.uncertainty.data_size},
+              {"word_length_extrapolation", e.uncertainty.word_length},
+              {"bias_correction", e.uncertainty.bias_correction}}},
+            {"info_rate_ci95_bits_per_s", {e.info_rate_ci95.first, e.info_rate_ci95.second}},
+            {"bits_per_spike", number_or_null(r.bits_per_spike)},
+            {"coding_efficiency", number_or_null(r.coding_efficiency)},
+            {"warnings", r.warnings}};
+}
+}  // namespace
+
+nlohmann::ordered_json direct_parameters_json(const direct_request& q) {
+    const direct_settings& s = q.settings;
+    return {{"units", q.units},
+            {"stimulus", q.stimulus ? json(*q.stimulus) : json(nullptr)},
+            {"bin_ms", q.bin_ms},
+            {"letters", {s.letters_min, s.letters_max}},
+            {"binary", q.binary},
+            {"fit_letters", s.fit_letters ? json{s.fit_letters->first, s.fit_letters->second} : json(nullptr)},
+            {"splits", s.splits},
+            {"subset_estimator", subset_estimator_name(s.subsets)},
+            {"bias_tolerance", s.bias_tolerance},
+            {"seed", s.seed},
+            {"threads", q.threads}};
+}
+
+nlohmann::ordered_json direct_json(const std::vector<direct_record>& records, const direct_request& request,
+                                   const provenance& origin) {
+    json j;
+    j["tool"] = "rastrum";
+    j["version"] = version();
+    j["analysis"] = "direct";
+    j["input"] = {{"path", origin.input_path}, {"sha256", origin.input_sha256}};
+    j["parameters"] = direct_parameters_json(request);
+    j["run"] = {{"command_line", origin.command_line},
+                {"started_utc", origin.started_utc},
+                {"finished_utc", origin.finished_utc},
+                {"threads", origin.threads}};
+    j["records"] = json::array();
+    for (const auto& r: records) j["records"].push_back(record_json(r));
+    return j;
+}
+
+namespace {
+std::string csv_number(double x) {
+    if (!std::isfinite(x)) return "";
+    char text[40];
+    std::snprintf(text, sizeof text, "%.10g", x);
+    return text;
+}
+std::string csv_text(const std::string& s) {
+    if (s.find_first_of(",\"\n") == std::string::npos) return s;
+    std::string q = "\"";
+    for (char c: s) {
+        if (c == '"') q += '"';
+        q += c;
+    }
+    return q + "\"";
+}
+}  // namespace
+
+std::string direct_csv(const std::vector<direct_record>& records) {
+    std::ostringstream s;
+    s << "unit,stimulus,bin_ms,trials,trial_duration_s,mean_rate_hz,letters,samples,distinct_words,"
+         "total_entropy_bits,noise_entropy_bits,info_bits,total_entropy_plugin_bits,noise_entropy_plugin_bits,"
+         "total_entropy_miller_madow_bits,noise_entropy_miller_madow_bits,estimator_spread_bits,"
+         "info_se_bits,well_sampled,in_fit,total_entropy_rate_bits_per_s,noise_entropy_rate_bits_per_s,"
+         "info_rate_bits_per_s,info_rate_ci95_low_bits_per_s,info_rate_ci95_high_bits_per_s,bits_per_spike,"
+         "coding_efficiency,warnings\n";
+    for (const auto& r: records) {
+        const auto& e = r.estimate;
+        std::string warnings;
+        for (const auto& w: r.warnings) warnings += (warnings.empty() ? "" : "; ") + w;
+        for (const auto& le: e.by_letters) {
+            const bool in_fit = le.letters >= e.fit_letters.first && le.letters <= e.fit_letters.second;
+            s << csv_text(r.unit) << ',' << csv_text(r.stimulus.value_or("")) << ',' << csv_number(r.bin_ms) << ','
+              << r.trials << ',' << csv_number(r.trial_duration) << ',' << csv_number(r.mean_rate_hz) << ','
+              << le.letters << ',' << le.samples << ',' << le.distinct_words << ',' << csv_number(le.total_bits) << ','
+              << csv_number(le.noise_bits) << ',' << csv_number(le.info_bits) << ','
+              << csv_number(le.total_plugin_bits) << ',' << csv_number(le.noise_plugin_bits) << ','
+              << csv_number(le.total_miller_madow_bits) << ',' << csv_number(le.noise_miller_madow_bits) << ','
+              << csv_number(le.estimator_spread_bits) << ',' << csv_number(le.info_se_bits) << ','
+              << (le.well_sampled ? "true" : "false") << ',' << (in_fit ? "true" : "false") << ','
+              << csv_number(e.total_rate) << ',' << csv_number(e.noise_rate) << ',' << csv_number(e.info_rate) << ','
+              << csv_number(e.info_rate_ci95.first) << ',' << csv_number(e.info_rate_ci95.second) << ','
+              << csv_number(r.bits_per_spike) << ',' << csv_number(r.coding_efficiency) << ','
+              << csv_text(warnings) << '\n';
+        }
+    }
+    return s.str();
+}
+
+std::string direct_table(const std::vector<direct_record>& records, const direct_request& request) {
+    std::ostringstream s;
+    char line[320];
+    s << "Direct method: information about a repeated stimulus";
+    if (request.stimulus) s << " (trials labelled " << *request.stimulus << ")";
+    s << "\n";
+    if (!records.empty()) {
+        std::snprintf(line, sizeof line, "%zu trials cut to %.4g s; %s letters; rates extrapolated to infinite data and word length\n",
+                      records.front().trials, records.front().trial_duration,
+                      request.binary ? "binary" : "spike-count");
+        s << line;
+    }
+    std::snprintf(line, sizeof line, "\n%-10s %7s %8s %10s %10s %10s %21s %9s %7s %6s\n", "unit", "bin ms", "rate Hz",
+                  "total b/s", "noise b/s", "info b/s", "info 95% interval", "bits/spk", "effic.", "fit L");
+    s << line;
+    for (const auto& r: records) {
+        const auto& e = r.estimate;
+        char interval[48], bps[16], eff[16], fit[16];
+        std::snprintf(interval, sizeof interval, "[%.2f, %.2f]", e.info_rate_ci95.first, e.info_rate_ci95.second);
+        std::snprintf(bps, sizeof bps, std::isfinite(r.bits_per_spike) ? "%.3f" : "-", r.bits_per_spike);
+        std::snprintf(eff, sizeof eff, std::isfinite(r.coding_efficiency) ? "%.3f" : "-", r.coding_efficiency);
+        std::snprintf(fit, sizeof fit, "%d-%d", e.fit_letters.first, e.fit_letters.second);
+        std::snprintf(line, sizeof line, "%-10s %7g %8.2f %10.2f %10.2f %10.2f %21s %9s %7s %6s%s\n", r.unit.c_str(),
+                      r.bin_ms, r.mean_rate_hz, e.total_rate, e.noise_rate, e.info_rate, interval, bps, eff, fit,
+                      r.warnings.empty() ? "" : "  (!)");
+        s << line;
+    }
+    bool any = false;
+    for (const auto& r: records) {
+        for (const auto& w: r.warnings) {
+            if (!any) s << "\nCautions:\n";
+            any = true;
+            std::snprintf(line, sizeof line, "  %s at %g ms: ", r.unit.c_str(), r.bin_ms);
+            s << line << w << "\n";
+        }
+    }
+    return s.str();
+}
+
+}  // namespace rastrum

@@ -1,0 +1,535 @@
+#include "hdf5_read_helpers.hpp"
+
+#include <cerrno>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+#include <functional>
+#include <limits>
+
+namespace rastrum::hdf5 {
+
+namespace {
+
+// The innermost message of the last failed library call. HDF5 clears its error stack at the next
+// API call, which may happen while an exception unwinds (closing an identifier), so the message is
+// copied out when the failure happens rather than read from the stack later.
+std::string& captured_message() {
+    static thread_local std::string message;
+    return message;
+}
+
+herr_t keep_innermost(unsigned n, const H5E_error2_t* entry, void* out) {
+    if (n == 0 && entry != nullptr && entry->desc != nullptr) *static_cast<std::string*>(out) = entry->desc;
+    return 0;
+}
+
+herr_t capture_instead_of_printing(hid_t stack, void*) {
+    std::string innermost;
+    H5Ewalk2(stack, H5E_WALK_UPWARD, keep_innermost, &innermost);  // upward: the innermost comes first
+    captured_message() = innermost;
+    return 0;
+}
+
+// Deflate, the one filter every HDF5 build has, cannot shrink data by more than about 1032:1, so a
+// filtered dataset declaring more than this many times the file size cannot be real data.
+constexpr std::uint64_t max_compression_ratio = 1032;
+
+std::string bytes_text(std::uint64_t bytes) { return std::to_string(bytes) + " bytes"; }
+
+std::string hex_byte(unsigned char byte) {
+    static const char digits[] = "0123456789abcdef";
+    return std::string("0x") + digits[byte >> 4] + digits[byte & 15];
+}
+
+// A name that may hold invalid UTF-8, made safe to print: bytes above 0x7f as \xNN.
+std::string printable(const std::string& text) {
+    std::string out;
+    for (const char c: text) {
+        const auto byte = static_cast<unsigned char>(c);
+        if (byte < 0x80) {
+            out += c;
+        } else {
+            out += "\\x" + hex_byte(byte).substr(2);
+        }
+    }
+    return out;
+}
+
+std::string kind_name(object_kind kind) {
+    switch (kind) {
+    case object_kind::missing: return "nothing";
+    case object_kind::group: return "a group";
+    case object_kind::dataset: return "a dataset";
+    case object_kind::other: return "an object that is neither group nor dataset";
+    }
+    return "an unknown object";
+}
+
+object_kind kind_of(H5O_type_t type) {
+    switch (type) {
+    case H5O_TYPE_GROUP: return object_kind::group;
+    case H5O_TYPE_DATASET: return object_kind::dataset;
+    default: return object_kind::other;
+    }
+}
+
+std::string of_type(const H5::DataType& type) { return "elements of type " + describe_type(type); }
+
+// Strings read through a caller-supplied read call, so datasets and attributes share one decoder.
+using raw_read = std::function<void(void* buffer, const H5::DataType& memory_type)>;
+
+// Variable-length strings come back as library-allocated pointers; this frees them on every path.
+struct vlen_buffer {
+    std::vector<char*> pointers;
+    explicit vlen_buffer(std::size_t n): pointers(n, nullptr) {}
+    ~vlen_buffer() {
+        for (char* p: pointers) {
+            if (p != nullptr) H5free_memory(p);
+        }
+    }
+    vlen_buffer(const vlen_buffer&) = delete;
+    vlen_buffer& operator=(const vlen_buffer&) = delete;
+};
+
+std::vector<std::string> decode_strings(const H5::DataType& file_type, std::size_t n, const raw_read& read) {
+    const hid_t tid = file_type.getId();
+    const H5T_cset_t cset = H5Tget_cset(tid);
+    std::vector<std::string> out;
+    out.reserve(n);
+    if (n == 0) return out;
+    if (H5Tis_variable_str(tid) > 0) {
+        // Same character set in memory as on disk: HDF5 does not convert between ASCII and UTF-8.
+        H5::StrType memory(H5::PredType::C_S1, H5T_VARIABLE);
+        memory.setCset(cset);
+        vlen_buffer buffer(n);
+        read(buffer.pointers.data(), memory);
+        for (const char* p: buffer.pointers) out.emplace_back(p != nullptr ? p : "");
+        return out;
+    }
+    const std::size_t width = H5Tget_size(tid);
+    const H5T_str_t pad = H5Tget_strpad(tid);
+    H5::StrType memory(H5::PredType::C_S1, width);
+    memory.setCset(cset);
+    memory.setStrpad(pad);
+    std::vector<char> buffer(n * width);
+    read(buffer.data(), memory);
+    for (std::size_t i = 0; i < n; ++i) {
+        std::string s(buffer.data() + i * width, width);
+        if (pad == H5T_STR_SPACEPAD) {
+            s.erase(s.find_last_not_of(' ') + 1);
+        } else {
+            const auto nul = s.find('\0');
+            if (nul != std::string::npos) s.erase(nul);
+        }
+        out.push_back(std::move(s));
+    }
+    return out;
+}
+
+}  // namespace
+
+void quiet_library() { H5::Exception::dontPrint(); }
+
+namespace {
+int captures_alive = 0;  // serial HDF5 is single-threaded, so a plain counter suffices
+}  // namespace
+
+error_capture::error_capture() {
+    // Set each time the first one starts, not once: other code may have reset the handler since.
+    if (captures_alive++ == 0) H5Eset_auto2(H5E_DEFAULT, capture_instead_of_printing, nullptr);
+}
+
+error_capture::~error_capture() {
+    if (--captures_alive == 0) quiet_library();
+}
+
+void forget_library_message() { captured_message().clear(); }
+
+std::string library_message(const H5::Exception& e) {
+    std::string message = std::move(captured_message());
+    captured_message().clear();
+    if (message.empty()) message = e.getDetailMsg();
+    return message;
+}
+
+std::string element_path(const std::string& object, std::size_t index) {
+    return object + "[" + std::to_string(index) + "]";
+}
+
+std::string attribute_path(const std::string& object, const std::string& name) { return object + "@" + name; }
+
+std::size_t invalid_utf8_offset(const std::string& text) {
+    const auto* s = reinterpret_cast<const unsigned char*>(text.data());
+    const std::size_t n = text.size();
+    std::size_t i = 0;
+    while (i < n) {
+        const unsigned char c = s[i];
+        std::size_t length = 0;
+        std::uint32_t code = 0;
+        std::uint32_t smallest = 0;  // below this the sequence is an overlong form
+        if (c < 0x80) {
+            ++i;
+            continue;
+        } else if ((c & 0xe0) == 0xc0) {
+            length = 2, code = c & 0x1fu, smallest = 0x80;
+        } else if ((c & 0xf0) == 0xe0) {
+            length = 3, code = c & 0x0fu, smallest = 0x800;
+        } else if ((c & 0xf8) == 0xf0) {
+            length = 4, code = c & 0x07u, smallest = 0x10000;
+        } else {
+            return i;
+        }
+        if (i + length > n) return i;
+        for (std::size_t k = 1; k < length; ++k) {
+            if ((s[i + k] & 0xc0) != 0x80) return i;
+            code = (code << 6) | (s[i + k] & 0x3fu);
+        }
+        if (code < smallest || code > 0x10ffff || (code >= 0xd800 && code <= 0xdfff)) return i;
+        i += length;
+    }
+    return std::string::npos;
+}
+
+std::string describe_type(const H5::DataType& type) {
+    const hid_t tid = type.getId();
+    const std::string bits = std::to_string(8 * H5Tget_size(tid)) + "-bit ";
+    switch (H5Tget_class(tid)) {
+    case H5T_INTEGER: return bits + (H5Tget_sign(tid) == H5T_SGN_NONE ? "unsigned" : "signed") + " integer";
+    case H5T_FLOAT: return bits + "float";
+    case H5T_STRING:
+        return H5Tis_variable_str(tid) > 0 ? "variable-length string"
+                                           : "fixed-length string of " + std::to_string(H5Tget_size(tid)) + " bytes";
+    case H5T_COMPOUND: return "compound (record)";
+    case H5T_ENUM: return "enumeration";
+    case H5T_ARRAY: return "array";
+    case H5T_VLEN: return "variable-length sequence";
+    case H5T_REFERENCE: return "reference";
+    case H5T_OPAQUE: return "opaque";
+    case H5T_BITFIELD: return "bitfield";
+    case H5T_TIME: return "time";
+    default: return "unknown type";
+    }
+}
+
+source::source(std::string path): path_(std::move(path)) {
+    namespace fs = std::filesystem;
+    std::error_code ec;
+    const auto status = fs::status(path_, ec);
+    if (!fs::exists(status)) throw input_error(path_, "", "an existing HDF5 file", "no such file");
+    if (fs::is_directory(status)) throw input_error(path_, "", "an HDF5 file", "a directory");
+    if (!fs::is_regular_file(status)) throw input_error(path_, "", "an HDF5 file", "not a regular file");
+    if (!std::ifstream(path_, std::ios::binary)) {
+        throw input_error(path_, "", "a readable HDF5 file", std::string("a file that cannot be opened: ") +
+                                                                 std::strerror(errno));
+    }
+    const bool is_hdf5 = guard("", "an HDF5 file", [&] { return H5::H5File::isHdf5(path_); });
+    if (!is_hdf5) throw input_error(path_, "", "an HDF5 file", "a file without the HDF5 signature");
+    guard("", "an HDF5 file that the HDF5 library can open", [&] { file_.openFile(path_, H5F_ACC_RDONLY); });
+    file_size_ = guard("", "an HDF5 file of known size", [&] { return file_.getFileSize(); });
+}
+
+namespace {
+// Where a path stops resolving: the object itself, or the first ancestor that is missing or not
+// a group (then `kind` is what that ancestor is).
+struct resolution {
+    object_kind kind;
+    std::string at;
+};
+
+resolution resolve(H5::H5File& file, const std::string& file_path, const std::string& object) {
+    if (object.empty() || object[0] != '/') throw internal_error("HDF5 path not absolute: " + object);
+    if (object == "/") return {object_kind::group, object};
+    const hid_t loc = file.getId();
+    std::size_t from = 1;
+    while (true) {
+        const std::size_t slash = object.find('/', from);
+        const std::string prefix = object.substr(0, slash);
+        captured_message().clear();
+        const htri_t link = H5Lexists(loc, prefix.c_str(), H5P_DEFAULT);
+        if (link < 0) {
+            throw input_error(file_path, prefix, "a readable link", "an HDF5 error: " + captured_message());
+        }
+        // A soft or external link may name nothing; that is as missing as no link.
+        if (link == 0 || H5Oexists_by_name(loc, prefix.c_str(), H5P_DEFAULT) <= 0) {
+            return {object_kind::missing, prefix};
+        }
+        H5O_type_t type = H5O_TYPE_UNKNOWN;
+        try {
+            type = file.childObjType(prefix);
+        } catch (const H5::Exception& e) {
+            throw input_error(file_path, prefix, "an intact, readable HDF5 object", "an HDF5 error: " + library_message(e));
+        }
+        const object_kind kind = kind_of(type);
+        if (slash == std::string::npos || kind != object_kind::group) return {kind, prefix};
+        from = slash + 1;
+    }
+}
+}  // namespace
+
+object_kind source::kind(const std::string& object) {
+    const resolution r = resolve(file_, path_, object);
+    return r.at == object ? r.kind : object_kind::missing;
+}
+
+namespace {
+void require_kind(const std::string& file, const std::string& object, const resolution& r, object_kind wanted,
+                  const std::string& expected) {
+    if (r.at != object) {
+        throw input_error(file, r.at, "a group (on the way to " + object + ")", kind_name(r.kind));
+    }
+    if (r.kind != wanted) throw input_error(file, object, expected, kind_name(r.kind));
+}
+}  // namespace
+
+H5::Group source::group(const std::string& object, const std::string& expected) {
+    require_kind(path_, object, resolve(file_, path_, object), object_kind::group, expected);
+    return guard(object, expected, [&] { return file_.openGroup(object); });
+}
+
+H5::DataSet source::dataset(const std::string& object, const std::string& expected) {
+    require_kind(path_, object, resolve(file_, path_, object), object_kind::dataset, expected);
+    return guard(object, expected, [&] { return file_.openDataSet(object); });
+}
+
+std::vector<std::string> source::member_names(const std::string& group_path) {
+    H5::Group g = group(group_path, "a group");
+    const std::string base = group_path == "/" ? "/" : group_path + "/";
+    return guard(group_path, "a group whose members can be listed", [&] {
+        const hsize_t n = g.getNumObjs();
+        std::vector<std::string> names;
+        names.reserve(n);
+        for (hsize_t i = 0; i < n; ++i) {
+            std::string name = g.getObjnameByIdx(i);
+            const std::size_t bad = invalid_utf8_offset(name);
+            if (bad != std::string::npos) {
+                throw input_error(path_, base + printable(name), "a member name in UTF-8",
+                                  "byte " + hex_byte(static_cast<unsigned char>(name[bad])) + " at offset " +
+                                      std::to_string(bad));
+            }
+            names.push_back(std::move(name));
+        }
+        return names;
+    });
+}
+
+extent_1d source::checked_extent(const H5::DataSet& dataset, const std::string& object,
+                                 const std::string& expected) {
+    const H5::DataSpace space = dataset.getSpace();
+    switch (space.getSimpleExtentType()) {
+    case H5S_NULL: throw input_error(path_, object, expected, "a dataset with a null dataspace (no shape)");
+    case H5S_SCALAR: throw input_error(path_, object, expected, "a scalar (rank 0)");
+    default: break;
+    }
+    const int rank = space.getSimpleExtentNdims();
+    if (rank != 1) {
+        std::vector<hsize_t> dims(static_cast<std::size_t>(rank));
+        space.getSimpleExtentDims(dims.data());
+        std::string shape;
+        for (const hsize_t d: dims) shape += (shape.empty() ? "" : " x ") + std::to_string(d);
+        throw input_error(path_, object, expected, "a " + std::to_string(rank) + "-D dataset [" + shape + "]");
+    }
+    hsize_t n = 0;
+    space.getSimpleExtentDims(&n);
+    if (n > max_elements) {
+        throw input_error(path_, object, expected + " of at most 2^31 elements",
+                          "a declared size of " + std::to_string(n) + " elements");
+    }
+    // Compare the declared size with the file before anything is allocated: a corrupt or hostile
+    // header can claim any size, and unwritten chunks read back as fill values.
+    const std::uint64_t stored_each = dataset.getDataType().getSize();
+    const bool filtered = dataset.getCreatePlist().getNfilters() > 0;
+    const std::uint64_t room = filtered && file_size_ <= std::numeric_limits<std::uint64_t>::max() / max_compression_ratio
+                                   ? file_size_ * max_compression_ratio
+                                   : file_size_;
+    if (stored_each > 0 && n > room / stored_each) {
+        throw input_error(path_, object,
+                          expected + " that fits in the file (" + bytes_text(file_size_) + ")",
+                          "a declared size of " + std::to_string(n) + " elements of " + bytes_text(stored_each) +
+                              " (" + bytes_text(n * stored_each) + ")");
+    }
+    return extent_1d{static_cast<std::size_t>(n)};
+}
+
+std::vector<double> source::read_float64(const std::string& object) {
+    const std::string expected = "a 1-D float64 dataset (any float type)";
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] {
+        const H5::DataType type = ds.getDataType();
+        if (type.getClass() != H5T_FLOAT) throw input_error(path_, object, expected, of_type(type));
+        std::vector<double> values(checked_extent(ds, object, expected).elements);
+        if (!values.empty()) ds.read(values.data(), H5::PredType::NATIVE_DOUBLE);
+        return values;
+    });
+}
+
+namespace {
+// Unsigned integers of 64 bits hold values int64 cannot.
+bool is_wide_unsigned(const H5::DataType& type) {
+    return H5Tget_sign(type.getId()) == H5T_SGN_NONE && type.getSize() >= 8;
+}
+
+// Integers of any width and sign read as int64; uint64 values beyond int64 are an error at their index.
+std::vector<std::int64_t> read_integers(const H5::DataSet& ds, std::size_t n, const std::string& file,
+                                        const std::string& object) {
+    std::vector<std::int64_t> values(n);
+    if (n == 0) return values;
+    if (is_wide_unsigned(ds.getDataType())) {
+        std::vector<std::uint64_t> raw(n);
+        ds.read(raw.data(), H5::PredType::NATIVE_UINT64);
+        for (std::size_t i = 0; i < n; ++i) {
+            if (raw[i] > static_cast<std::uint64_t>(std::numeric_limits<std::int64_t>::max())) {
+                throw input_error(file, element_path(object, i), "an integer that fits in int64",
+                                  std::to_string(raw[i]));
+            }
+            values[i] = static_cast<std::int64_t>(raw[i]);
+        }
+    } else {
+        ds.read(values.data(), H5::PredType::NATIVE_INT64);
+    }
+    return values;
+}
+
+void require_integer_width(const H5::DataType& type, const std::string& file, const std::string& object,
+                           const std::string& expected) {
+    if (type.getSize() > 8) throw input_error(file, object, expected + " of at most 64 bits", of_type(type));
+}
+}  // namespace
+
+std::vector<std::int64_t> source::read_int64(const std::string& object) {
+    const std::string expected = "a 1-D integer dataset";
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] {
+        const H5::DataType type = ds.getDataType();
+        if (type.getClass() != H5T_INTEGER) throw input_error(path_, object, expected, of_type(type));
+        require_integer_width(type, path_, object, expected);
+        return read_integers(ds, checked_extent(ds, object, expected).elements, path_, object);
+    });
+}
+
+std::vector<std::string> source::read_string_elements(const H5::DataSet& ds, const H5::StrType& type,
+                                                      std::size_t elements, const std::string& object) {
+    std::vector<std::string> values = decode_strings(
+        type, elements, [&](void* buffer, const H5::DataType& memory) { ds.read(buffer, memory); });
+    for (std::size_t i = 0; i < values.size(); ++i) {
+        const std::size_t bad = invalid_utf8_offset(values[i]);
+        if (bad != std::string::npos) {
+            throw input_error(path_, element_path(object, i), "UTF-8 text",
+                              "byte " + hex_byte(static_cast<unsigned char>(values[i][bad])) + " at offset " +
+                                  std::to_string(bad) + ", which is not UTF-8");
+        }
+    }
+    return values;
+}
+
+std::vector<std::string> source::read_strings(const std::string& object) {
+    const std::string expected = "a 1-D string dataset (UTF-8, variable- or fixed-length)";
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] {
+        const H5::DataType type = ds.getDataType();
+        if (type.getClass() != H5T_STRING) throw input_error(path_, object, expected, of_type(type));
+        return read_string_elements(ds, ds.getStrType(), checked_extent(ds, object, expected).elements, object);
+    });
+}
+
+std::vector<std::string> source::read_labels(const std::string& object) {
+    const std::string expected = "a 1-D dataset of integer or string labels";
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] {
+        const H5::DataType type = ds.getDataType();
+        if (type.getClass() != H5T_INTEGER && type.getClass() != H5T_STRING) {
+            throw input_error(path_, object, expected, of_type(type));
+        }
+        const std::size_t n = checked_extent(ds, object, expected).elements;
+        if (type.getClass() == H5T_STRING) return read_string_elements(ds, ds.getStrType(), n, object);
+        require_integer_width(type, path_, object, expected);
+        std::vector<std::string> labels;
+        labels.reserve(n);
+        if (n == 0) return labels;
+        // Labels are text, so unsigned 64-bit values keep their exact decimal form.
+        if (is_wide_unsigned(type)) {
+            std::vector<std::uint64_t> raw(n);
+            ds.read(raw.data(), H5::PredType::NATIVE_UINT64);
+            for (const std::uint64_t v: raw) labels.push_back(std::to_string(v));
+        } else {
+            for (const std::int64_t v: read_integers(ds, n, path_, object)) labels.push_back(std::to_string(v));
+        }
+        return labels;
+    });
+}
+
+bool source::has_attribute(const std::string& object, const std::string& name) {
+    const std::string where = attribute_path(object, name);
+    if (kind(object) == object_kind::missing) return false;
+    captured_message().clear();
+    const htri_t found = H5Aexists_by_name(file_.getId(), object.c_str(), name.c_str(), H5P_DEFAULT);
+    if (found < 0) throw input_error(path_, where, "a readable attribute", "an HDF5 error: " + captured_message());
+    return found > 0;
+}
+
+namespace {
+// An attribute holds one value when it is scalar or a one-element 1-D array.
+void require_single_value(const H5::Attribute& a, const std::string& file, const std::string& where,
+                          const std::string& expected) {
+    const H5::DataSpace space = a.getSpace();
+    if (space.getSimpleExtentType() == H5S_SCALAR) return;
+    if (space.getSimpleExtentType() == H5S_SIMPLE && space.getSimpleExtentNpoints() == 1) return;
+    throw input_error(file, where, expected + " (one value)",
+                      std::to_string(space.getSimpleExtentNpoints()) + " values");
+}
+
+H5::Attribute open_attribute(H5::H5File& file, object_kind kind, const std::string& object, const std::string& name) {
+    if (kind == object_kind::dataset) return file.openDataSet(object).openAttribute(name);
+    return file.openGroup(object).openAttribute(name);
+}
+}  // namespace
+
+std::string source::read_string_attribute(const std::string& object, const std::string& name) {
+    const std::string where = attribute_path(object, name);
+    const std::string expected = "a UTF-8 string attribute";
+    const object_kind k = kind(object);
+    return guard(where, expected, [&] {
+        const H5::Attribute a = open_attribute(file_, k, object, name);
+        const H5::DataType type = a.getDataType();
+        if (type.getClass() != H5T_STRING) throw input_error(path_, where, expected, of_type(type));
+        require_single_value(a, path_, where, expected);
+        if (type.getSize() > file_size_) {
+            throw input_error(path_, where, expected + " that fits in the file (" + bytes_text(file_size_) + ")",
+                              "a declared width of " + bytes_text(type.getSize()));
+        }
+        std::string value =
+            decode_strings(type, 1, [&](void* buffer, const H5::DataType& memory) { a.read(memory, buffer); })[0];
+        const std::size_t bad = invalid_utf8_offset(value);
+        if (bad != std::string::npos) {
+            throw input_error(path_, where, expected, "byte " + hex_byte(static_cast<unsigned char>(value[bad])) +
+                                                          " at offset " + std::to_string(bad) + ", not UTF-8");
+        }
+        return value;
+    });
+}
+
+std::int64_t source::read_int64_attribute(const std::string& object, const std::string& name) {
+    const std::string where = attribute_path(object, name);
+    const std::string expected = "an integer attribute";
+    const object_kind k = kind(object);
+    return guard(where, expected, [&] {
+        const H5::Attribute a = open_attribute(file_, k, object, name);
+        const H5::DataType type = a.getDataType();
+        if (type.getClass() != H5T_INTEGER) throw input_error(path_, where, expected, of_type(type));
+        require_integer_width(type, path_, where, expected);
+        require_single_value(a, path_, where, expected);
+        if (is_wide_unsigned(type)) {
+            std::uint64_t raw = 0;
+            a.read(H5::PredType::NATIVE_UINT64, &raw);
+            if (raw > static_cast<std::uint64_t>(std::numeric_limits<std::int64_t>::max())) {
+                throw input_error(path_, where, "an integer that fits in int64", std::to_string(raw));
+            }
+            return static_cast<std::int64_t>(raw);
+        }
+        std::int64_t value = 0;
+        a.read(H5::PredType::NATIVE_INT64, &value);
+        return value;
+    });
+}
+
+}  // namespace rastrum::hdf5

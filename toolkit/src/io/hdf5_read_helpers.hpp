@@ -1,0 +1,126 @@
+#pragma once
+/// Checked reading of HDF5 files for every loader (native layout, NWB): each failure becomes an
+/// input_error naming the file, the HDF5 path (with element index or "@attribute"), what was
+/// expected and what was found. Nothing is allocated for a dataset before its declared size has
+/// been compared with what the file could hold.
+#include <rastrum/errors.hpp>
+
+#include <H5Cpp.h>
+
+#include <cstddef>
+#include <cstdint>
+#include <string>
+#include <utility>
+#include <vector>
+
+namespace rastrum::hdf5 {
+
+/// Stops the HDF5 library printing its error stack to stderr. Idempotent.
+void quiet_library();
+
+/// While one is alive, the innermost message of each HDF5 failure is kept for library_message
+/// instead of printed; when the last one goes, the library is left silent. Scoped rather than
+/// installed for good because HDF5 1.10 fails to shut down at exit ("infinite loop closing
+/// library") when an application error handler is still set after it met a corrupt file.
+class error_capture {
+public:
+    error_capture();
+    ~error_capture();
+    error_capture(const error_capture&) = delete;
+    error_capture& operator=(const error_capture&) = delete;
+};
+
+/// What the HDF5 library said about the failure behind `e`: the innermost message of its error
+/// stack when an error_capture kept one, else the exception's own text.
+std::string library_message(const H5::Exception& e);
+/// Drops a captured message, so a later exception is not explained by an earlier failure.
+void forget_library_message();
+
+/// "/units/u3/spike_times[17]"
+std::string element_path(const std::string& object, std::size_t index);
+/// "/@layout", "/trials@units": an attribute named like the object it hangs on.
+std::string attribute_path(const std::string& object, const std::string& name);
+
+/// Byte offset of the first byte that does not start a valid UTF-8 sequence (overlong forms,
+/// surrogates and code points above U+10FFFF are invalid), or std::string::npos.
+std::size_t invalid_utf8_offset(const std::string& text);
+
+/// For messages: "64-bit float", "32-bit signed integer", "variable-length string", "compound", ...
+std::string describe_type(const H5::DataType& type);
+
+/// What an HDF5 path names.
+enum class object_kind { missing, group, dataset, other };
+
+/// A dataset's shape, checked to be one-dimensional.
+struct extent_1d {
+    std::size_t elements = 0;
+};
+
+/// Largest element count any helper reads: beyond this a declared size is taken as corrupt.
+constexpr std::uint64_t max_elements = std::uint64_t{1} << 31;
+
+/// One HDF5 file opened read-only for a loader.
+class source {
+public:
+    /// Throws input_error when `path` does not exist, is not a regular readable file, is not HDF5,
+    /// or HDF5 cannot open it (a truncated file, for example).
+    explicit source(std::string path);
+
+    const std::string& path() const { return path_; }
+    H5::H5File& file() { return file_; }
+    /// Bytes on disk, the bound for every declared dataset size.
+    std::uint64_t file_size() const { return file_size_; }
+
+    /// Runs `f`, turning an H5::Exception into input_error{path, object, expected, library message}.
+    template <class F>
+    auto guard(const std::string& object, const std::string& expected, F&& f) -> decltype(f()) {
+        try {
+            forget_library_message();
+            return f();
+        } catch (const H5::Exception& e) {
+            throw input_error(path_, object, expected, "an HDF5 error: " + library_message(e));
+        }
+    }
+
+    /// Walks `object` ("/a/b/c") link by link, so a missing or non-group ancestor is told apart
+    /// from a missing final name. Absolute paths only.
+    object_kind kind(const std::string& object);
+    bool exists(const std::string& object) { return kind(object) != object_kind::missing; }
+
+    /// The group at `object`; `expected` describes it for the message when it is missing or is
+    /// something else. A missing ancestor is reported at the ancestor's path.
+    H5::Group group(const std::string& object, const std::string& expected);
+    /// The dataset at `object`, as above.
+    H5::DataSet dataset(const std::string& object, const std::string& expected);
+
+    /// Names of the links in a group, in HDF5's name order (byte order), each checked to be UTF-8.
+    std::vector<std::string> member_names(const std::string& group_path);
+
+    /// A one-dimensional dataset of any float class, converted to double.
+    std::vector<double> read_float64(const std::string& object);
+    /// A one-dimensional dataset of any integer class that fits in int64.
+    std::vector<std::int64_t> read_int64(const std::string& object);
+    /// A one-dimensional dataset of strings, variable- or fixed-length, each checked to be UTF-8.
+    std::vector<std::string> read_strings(const std::string& object);
+    /// Labels: a one-dimensional integer dataset (any width, as decimal text) or string dataset.
+    std::vector<std::string> read_labels(const std::string& object);
+
+    bool has_attribute(const std::string& object, const std::string& name);
+    /// A scalar (or one-element) string attribute.
+    std::string read_string_attribute(const std::string& object, const std::string& name);
+    /// A scalar (or one-element) integer attribute that fits in int64.
+    std::int64_t read_int64_attribute(const std::string& object, const std::string& name);
+
+private:
+    // Checks rank 1 and that `elements` x `stored_bytes_per_element` could be in this file.
+    extent_1d checked_extent(const H5::DataSet& dataset, const std::string& object, const std::string& expected);
+    std::vector<std::string> read_string_elements(const H5::DataSet& dataset, const H5::StrType& type,
+                                                  std::size_t elements, const std::string& object);
+
+    std::string path_;
+    error_capture capture_;  // declared before file_, so it outlives the file's closing
+    H5::H5File file_;
+    std::uint64_t file_size_ = 0;
+};
+
+}  // namespace rastrum::hdf5

@@ -1,0 +1,113 @@
+#include "hdf5_read_helpers.hpp"
+
+#include <rastrum/atomic_file.hpp>
+#include <rastrum/errors.hpp>
+#include <rastrum/recording_hdf5.hpp>
+
+#include <cstdint>
+
+namespace rastrum {
+
+namespace {
+
+// Names and labels are stored as UTF-8 and read back through the same checks the reader applies,
+// so anything the reader would refuse is refused here, before a file exists.
+void check_writable(const recording& rec, const std::string& path) {
+    for (const auto& u: rec.units) {
+        const bool bad_name = u.id == "." || u.id.find('/') != std::string::npos ||
+                              u.id.find('\0') != std::string::npos;
+        if (bad_name) {
+            throw error("cannot write " + path + ": unit id \"" + u.id +
+                        "\" cannot be an HDF5 group name (no '/', no NUL, not \".\")");
+        }
+        if (hdf5::invalid_utf8_offset(u.id) != std::string::npos) {
+            throw error("cannot write " + path + ": unit id is not UTF-8");
+        }
+    }
+    for (std::size_t k = 0; k < rec.stimulus.size(); ++k) {
+        const std::string& s = rec.stimulus[k];
+        if (s.find('\0') != std::string::npos || hdf5::invalid_utf8_offset(s) != std::string::npos) {
+            throw error("cannot write " + path + ": stimulus label of trial " + std::to_string(k) +
+                        " is not UTF-8 text without NUL bytes");
+        }
+    }
+}
+
+H5::StrType utf8_variable_string() {
+    H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+    type.setCset(H5T_CSET_UTF8);
+    return type;
+}
+
+H5::LinkCreatPropList utf8_names() {
+    H5::LinkCreatPropList lcpl;
+    lcpl.setCharEncoding(H5T_CSET_UTF8);
+    return lcpl;
+}
+
+void write_times(const H5::Group& parent, const std::string& name, const std::vector<seconds>& values) {
+    const hsize_t n = values.size();
+    const H5::DataSpace space(1, &n);
+    const H5::DataSet ds = parent.createDataSet(name, H5::PredType::IEEE_F64LE, space);
+    if (n > 0) ds.write(values.data(), H5::PredType::NATIVE_DOUBLE);
+}
+
+void write_labels(const H5::Group& parent, const std::string& name, const std::vector<std::string>& labels) {
+    const hsize_t n = labels.size();
+    const H5::DataSpace space(1, &n);
+    const H5::StrType type = utf8_variable_string();
+    const H5::DataSet ds = parent.createDataSet(name, type, space);
+    std::vector<const char*> pointers;
+    pointers.reserve(labels.size());
+    for (const auto& s: labels) pointers.push_back(s.c_str());
+    if (n > 0) ds.write(pointers.data(), type);
+}
+
+// Every object opened here is closed on return, so the caller's close() really closes the file.
+void write_contents(const H5::H5File& file, const recording& rec) {
+    const H5::DataSpace scalar(H5S_SCALAR);
+    // Fixed-length, so the value sits in the checksummed object header; a variable-length string
+    // would live in the global heap, which has no checksum.
+    const std::string layout = "spike-recording";
+    H5::StrType text(H5::PredType::C_S1, layout.size());
+    text.setCset(H5T_CSET_UTF8);
+    text.setStrpad(H5T_STR_NULLPAD);
+    file.createAttribute("layout", text, scalar).write(text, layout.data());
+    const std::int64_t version = 1;
+    file.createAttribute("layout_version", H5::PredType::STD_I64LE, scalar)
+        .write(H5::PredType::NATIVE_INT64, &version);
+
+    const H5::LinkCreatPropList names = utf8_names();
+    const H5::Group units = file.createGroup("units", names);
+    for (const auto& u: rec.units) write_times(units.createGroup(u.id, names), "spike_times", u.spike_times);
+
+    const H5::Group trials = file.createGroup("trials", names);
+    write_times(trials, "start_time", rec.trial_start);
+    write_times(trials, "stop_time", rec.trial_stop);
+    if (rec.has_stimulus()) write_labels(trials, "stimulus", rec.stimulus);
+}
+
+}  // namespace
+
+void write_recording_hdf5(const recording& rec, const std::string& path) {
+    // A file that the reader would refuse is not worth writing.
+    validate(rec);
+    check_writable(rec, path);
+    const hdf5::error_capture capture;
+    atomic_file out(path);
+    try {
+        // The 1.8 file format checksums every piece of metadata, so a file damaged later is
+        // refused by the library with a checksum error instead of being misread (HDF5 reading
+        // corrupt unchecksummed headers can even crash). Readable by every HDF5 since 1.8.
+        H5::FileAccPropList access;
+        access.setLibverBounds(H5F_LIBVER_V18, H5F_LIBVER_LATEST);
+        H5::H5File file(out.temporary_path(), H5F_ACC_TRUNC, H5::FileCreatPropList::DEFAULT, access);
+        write_contents(file, rec);
+        file.close();
+    } catch (const H5::Exception& e) {
+        throw error("cannot write " + path + ": " + hdf5::library_message(e));
+    }
+    out.commit();
+}
+
+}  // namespace rastrum

@@ -1,0 +1,51 @@
+#include <rastrum/atomic_file.hpp>
+#include <rastrum/errors.hpp>
+#include <rastrum/recording_hdf5.hpp>
+#include <rastrum/synthetic_files.hpp>
+#include <rastrum/version.hpp>
+
+#include <fstream>
+
+namespace rastrum {
+
+std::string answers_path_for(const std::string& recording_path) {
+    const auto slash = recording_path.find_last_of('/');
+    const auto dot = recording_path.find_last_of('.');
+    const bool has_extension = dot != std::string::npos && (slash == std::string::npos || dot > slash);
+    return (has_extension ? recording_path.substr(0, dot) : recording_path) + ".answers.json";
+}
+
+nlohmann::ordered_json synthetic_answers_json(const synthetic_recording& synth, const nlohmann::ordered_json& parameters) {
+    nlohmann::ordered_json j;
+    j["tool"] = "rastrum";
+    j["version"] = version();
+    j["kind"] = synth.kind;
+    j["parameters"] = parameters;
+    j["units"] = nlohmann::ordered_json::array();
+    for (const auto& t: synth.truth) {
+        nlohmann::ordered_json u;
+        u["unit"] = t.unit;
+        for (const auto& [key, value]: t.values) u[key] = value;
+        if (!t.by_letters.empty()) {
+            nlohmann::ordered_json by;
+            for (const auto& [key, values]: t.by_letters) by[key] = values;
+            u["by_letters"] = by;
+        }
+        j["units"].push_back(u);
+    }
+    return j;
+}
+
+void write_synthetic(const synthetic_recording& synth, const std::string& recording_path,
+                     const nlohmann::ordered_json& parameters) {
+    atomic_file answers(answers_path_for(recording_path));
+    {
+        std::ofstream out(answers.temporary_path());
+        out << synthetic_answers_json(synth, parameters).dump(2) << "\n";
+        if (!out) throw error("cannot write " + answers.final_path());
+    }
+    write_recording_hdf5(synth.rec, recording_path);
+    answers.commit();
+}
+
+}  // namespace rastrum

@@ -1,0 +1,204 @@
+#include <rastrum/errors.hpp>
+#include <rastrum/recording.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <sstream>
+#include <unordered_map>
+#include <unordered_set>
+
+namespace rastrum {
+
+namespace {
+
+// Messages name objects by their place in the native layout (notes/recording-layout.md), whatever
+// format the recording came from: one vocabulary for the user, and loaders of other formats can
+// say where those objects came from in their own warnings.
+std::string indexed(const std::string& object, std::size_t index) {
+    return object + "[" + std::to_string(index) + "]";
+}
+
+std::string number(double x) {
+    std::ostringstream out;
+    out.precision(17);  // enough to tell two nearby times apart in a message
+    out << x;
+    return out.str();
+}
+
+std::string quoted(const std::string& s) { return "\"" + s + "\""; }
+
+// Lists at most `limit` items so a recording with thousands of labels still gives a readable line.
+template <class Item, class Show>
+std::string listing(const std::vector<Item>& items, Show show, std::size_t limit = 20) {
+    std::string out;
+    for (std::size_t i = 0; i < items.size() && i < limit; ++i) {
+        if (i > 0) out += ", ";
+        out += show(items[i]);
+    }
+    if (items.size() > limit) out += ", ... (" + std::to_string(items.size() - limit) + " more)";
+    return out;
+}
+
+void validate_units(const recording& rec) {
+    if (rec.units.empty()) {
+        throw input_error(rec.source, "/units", "at least one unit", "no units");
+    }
+    std::unordered_set<std::string> seen;
+    for (const auto& u: rec.units) {
+        const std::string object = "/units/" + u.id + "/spike_times";
+        if (u.id.empty()) throw input_error(rec.source, "/units/", "a non-empty unit id", "an empty id");
+        if (!seen.insert(u.id).second) {
+            throw input_error(rec.source, "/units/" + u.id, "unit ids that differ", "this id twice");
+        }
+        for (std::size_t i = 0; i < u.spike_times.size(); ++i) {
+            if (!std::isfinite(u.spike_times[i])) {
+                throw input_error(rec.source, indexed(object, i), "a finite time in seconds",
+                                  number(u.spike_times[i]));
+            }
+            // align_to_trials binary-searches the spikes, so order is a precondition, not a nicety.
+            if (i > 0 && u.spike_times[i] < u.spike_times[i - 1]) {
+                throw input_error(rec.source, indexed(object, i),
+                                  "spike times in ascending order (>= " + number(u.spike_times[i - 1]) + ")",
+                                  number(u.spike_times[i]));
+            }
+        }
+    }
+}
+
+void validate_trials(const recording& rec) {
+    const auto& start = rec.trial_start;
+    const auto& stop = rec.trial_stop;
+    if (stop.size() != start.size()) {
+        throw input_error(rec.source, "/trials/stop_time",
+                          std::to_string(start.size()) + " stop times, one per start time in /trials/start_time",
+                          std::to_string(stop.size()));
+    }
+    if (start.empty()) {
+        throw input_error(rec.source, "/trials/start_time", "at least one trial", "no trials");
+    }
+    for (std::size_t k = 0; k < start.size(); ++k) {
+        if (!std::isfinite(start[k])) {
+            throw input_error(rec.source, indexed("/trials/start_time", k), "a finite time in seconds",
+                              number(start[k]));
+        }
+        if (!std::isfinite(stop[k])) {
+            throw input_error(rec.source, indexed("/trials/stop_time", k), "a finite time in seconds",
+                              number(stop[k]));
+        }
+        if (!(stop[k] > start[k])) {
+            throw input_error(rec.source, indexed("/trials/stop_time", k),
+                              "a stop time after the start time " + number(start[k]), number(stop[k]));
+        }
+    }
+    // Trials are trusted in the order given rather than sorted, so a file whose order is wrong is
+    // reported: silently reordering would also reorder the labels the user wrote beside them.
+    for (std::size_t k = 1; k < start.size(); ++k) {
+        if (!(start[k] > start[k - 1])) {
+            throw input_error(rec.source, indexed("/trials/start_time", k),
+                              "start times in ascending order (> " + number(start[k - 1]) + ", the start of trial " +
+                                  std::to_string(k - 1) + ")",
+                              number(start[k]));
+        }
+        if (stop[k - 1] > start[k]) {
+            throw input_error(rec.source, indexed("/trials/stop_time", k - 1),
+                              "trials that do not overlap: stop time <= " + number(start[k]) +
+                                  ", the start of trial " + std::to_string(k),
+                              number(stop[k - 1]));
+        }
+    }
+    if (!rec.stimulus.empty() && rec.stimulus.size() != start.size()) {
+        throw input_error(rec.source, "/trials/stimulus",
+                          std::to_string(start.size()) + " labels, one per trial",
+                          std::to_string(rec.stimulus.size()) + " labels");
+    }
+}
+
+// Index range [first, last) of the spikes inside trial k (half-open, like the trial itself).
+std::pair<std::size_t, std::size_t> spikes_in_trial(const std::vector<seconds>& spikes, const recording& rec,
+                                                    std::size_t k) {
+    const auto first = std::lower_bound(spikes.begin(), spikes.end(), rec.trial_start[k]);
+    const auto last = std::lower_bound(first, spikes.end(), rec.trial_stop[k]);
+    return {static_cast<std::size_t>(first - spikes.begin()), static_cast<std::size_t>(last - spikes.begin())};
+}
+
+}  // namespace
+
+const unit_spikes& recording::unit(const std::string& id) const {
+    for (const auto& u: units) {
+        if (u.id == id) return u;
+    }
+    throw usage_error("no unit " + quoted(id) + " in " + source + "; units present: " +
+                      listing(units, [](const unit_spikes& u) { return u.id; }));
+}
+
+void validate(const recording& rec) {
+    validate_units(rec);
+    validate_trials(rec);
+}
+
+std::vector<std::vector<seconds>> align_to_trials(const std::vector<seconds>& spikes, const recording& rec,
+                                                  const std::vector<std::size_t>& trials) {
+    std::vector<std::vector<seconds>> aligned;
+    aligned.reserve(trials.size());
+    for (const std::size_t k: trials) {
+        if (k >= rec.trial_count()) {
+            throw internal_error("align_to_trials: trial " + std::to_string(k) + " of " +
+                                 std::to_string(rec.trial_count()));
+        }
+        const auto [first, last] = spikes_in_trial(spikes, rec, k);
+        std::vector<seconds> relative;
+        relative.reserve(last - first);
+        // Rounding is monotone, so the differences stay ascending and t >= start gives t - start >= 0
+        // exactly; t - start may round up to equal stop - start for t just below stop.
+        for (std::size_t i = first; i < last; ++i) relative.push_back(spikes[i] - rec.trial_start[k]);
+        aligned.push_back(std::move(relative));
+    }
+    return aligned;
+}
+
+std::size_t spikes_outside_trials(const std::vector<seconds>& spikes, const recording& rec) {
+    // Trials do not overlap, so the spikes inside some trial are the sum over trials.
+    std::size_t inside = 0;
+    for (std::size_t k = 0; k < rec.trial_count(); ++k) {
+        const auto [first, last] = spikes_in_trial(spikes, rec, k);
+        inside += last - first;
+    }
+    return spikes.size() - inside;
+}
+
+std::vector<std::size_t> select_trials(const recording& rec, const std::optional<std::string>& stimulus) {
+    std::vector<std::size_t> chosen;
+    if (!stimulus) {
+        chosen.resize(rec.trial_count());
+        for (std::size_t k = 0; k < chosen.size(); ++k) chosen[k] = k;
+        return chosen;
+    }
+    if (!rec.has_stimulus()) {
+        throw usage_error("cannot select trials with stimulus " + quoted(*stimulus) + ": " + rec.source +
+                          " has no stimulus labels (no /trials/stimulus)");
+    }
+    for (std::size_t k = 0; k < rec.stimulus.size(); ++k) {
+        if (rec.stimulus[k] == *stimulus) chosen.push_back(k);
+    }
+    if (chosen.empty()) {
+        throw usage_error("no trial has stimulus " + quoted(*stimulus) + " in " + rec.source +
+                          "; labels present: " +
+                          listing(stimulus_labels(rec), [](const std::pair<std::string, std::size_t>& l) {
+                              return quoted(l.first) + " (" + std::to_string(l.second) + " trials)";
+                          }));
+    }
+    return chosen;
+}
+
+std::vector<std::pair<std::string, std::size_t>> stimulus_labels(const recording& rec) {
+    std::vector<std::pair<std::string, std::size_t>> labels;
+    std::unordered_map<std::string, std::size_t> position;
+    for (const auto& s: rec.stimulus) {
+        const auto [it, fresh] = position.emplace(s, labels.size());
+        if (fresh) labels.emplace_back(s, 0);
+        ++labels[it->second].second;
+    }
+    return labels;
+}
+
+}  // namespace rastrum

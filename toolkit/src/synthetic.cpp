@@ -1,0 +1,363 @@
+#include <rastrum/errors.hpp>
+#include <rastrum/random.hpp>
+#include <rastrum/synthetic.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <numeric>
+
+namespace rastrum {
+
+double binary_entropy(double p) {
+    if (p <= 0 || p >= 1) return 0;
+    return -p * std::log2(p) - (1 - p) * std::log2(1 - p);
+}
+
+namespace {
+
+constexpr double two_pi = 6.283185307179586;
+
+double gaussian(random_stream& rng) {
+    // Box-Muller; one of the pair is discarded to keep every draw independent of call order.
+    const double u = 1.0 - rng.uniform();
+    const double v = rng.uniform();
+    return std::sqrt(-2.0 * std::log(u)) * std::cos(two_pi * v);
+}
+
+/// Gamma(shape, 1) by Marsaglia & Tsang 2000 (ACM TOMS 26:363), with the shape < 1 boost
+/// gamma(a) = gamma(a + 1) u^(1/a) from the same paper.
+double gamma_draw(double shape, random_stream& rng) {
+    if (shape < 1) return gamma_draw(shape + 1, rng) * std::pow(1.0 - rng.uniform(), 1.0 / shape);
+    const double d = shape - 1.0 / 3.0, c = 1.0 / std::sqrt(9 * d);
+    while (true) {
+        double x, v;
+        do {
+            x = gaussian(rng);
+            v = 1 + c * x;
+        } while (v <= 0);
+        v = v * v * v;
+        const double u = 1.0 - rng.uniform();
+        if (std::log(u) < 0.5 * x * x + d - d * v + d * std::log(v)) return d * v;
+    }
+}
+
+std::uint64_t poisson_draw(double mean, random_stream& rng) {
+    // Inversion by sequential search: exact, and fast for the small means used here.
+    if (mean <= 0) return 0;
+    if (mean > 500) throw usage_error("Poisson means above 500 spikes are not supported by the generator");
+    double p = std::exp(-mean), cumulative = p;
+    const double u = rng.uniform();
+    std::uint64_t k = 0;
+    while (u > cumulative && p > 0) {
+        ++k;
+        p *= mean / static_cast<double>(k);
+        cumulative += p;
+    }
+    return k;
+}
+
+double per_unit(const std::vector<double>& values, std::size_t unit, const char* what) {
+    if (values.size() == 1) return values[0];
+    if (unit >= values.size()) throw usage_error(std::string(what) + ": give one value, or one per unit");
+    return values[unit];
+}
+
+std::string unit_name(std::size_t u) { return "u" + std::to_string(u + 1); }
+
+void check_session(const session_shape& s) {
+    if (s.trials < 1) throw usage_error("--trials must be at least 1");
+    if (!(s.duration > 0)) throw usage_error("--duration-s must be positive");
+    if (!(s.gap >= 0)) throw usage_error("--gap-s must not be negative");
+    if (!(s.background_hz >= 0)) throw usage_error("--background-hz must not be negative");
+}
+
+/// Lays out trials and adds background spikes in the gaps between them (never inside a trial).
+void lay_out_session(recording& rec, const session_shape& s, std::size_t n_trials, random_stream& rng) {
+    rec.trial_start.resize(n_trials);
+    rec.trial_stop.resize(n_trials);
+    for (std::size_t k = 0; k < n_trials; ++k) {
+        rec.trial_start[k] = s.gap + static_cast<double>(k) * (s.duration + s.gap);
+        rec.trial_stop[k] = rec.trial_start[k] + s.duration;
+    }
+    if (s.background_hz <= 0 || s.gap <= 0) return;
+    for (auto& u: rec.units) {
+        for (std::size_t k = 0; k <= n_trials; ++k) {
+            const seconds gap_start = k == 0 ? 0.0 : rec.trial_stop[k - 1];
+            for (double t = gap_start + rng.exponential() / s.background_hz; t < gap_start + s.gap;
+                 t += rng.exponential() / s.background_hz) {
+                u.spike_times.push_back(t);
+            }
+        }
+    }
+}
+
+void finish(recording& rec) {
+    for (auto& u: rec.units) std::sort(u.spike_times.begin(), u.spike_times.end());
+    validate(rec);
+}
+
+/// Entropy (bits) of the words of L independent binary letters pooled over start positions:
+/// the mixture over t of product Bernoulli(p_{t+j}) distributions.
+double pooled_binary_word_entropy(const std::vector<double>& p, int L) {
+    const std::size_t positions = p.size() - static_cast<std::size_t>(L) + 1;
+    const std::size_t words = std::size_t{1} << L;
+    std::vector<double> prob(words, 0.0);
+    std::vector<double> one(words);
+    for (std::size_t t = 0; t < positions; ++t) {
+        one[0] = 1.0;
+        std::size_t filled = 1;
+        for (int j = 0; j < L; ++j) {
+            const double q = p[t + static_cast<std::size_t>(j)];
+            for (std::size_t w = 0; w < filled; ++w) {
+                one[w + filled] = one[w] * q;
+                one[w] *= 1 - q;
+            }
+            filled *= 2;
+        }
+        for (std::size_t w = 0; w < words; ++w) prob[w] += one[w];
+    }
+    double h = 0;
+    for (double x: prob) {
+        const double q = x / static_cast<double>(positions);
+        if (q > 0) h -= q * std::log2(q);
+    }
+    return h;
+}
+
+double poisson_entropy_bits(double mean, std::vector<double>* pmf_out, std::size_t n) {
+    std::vector<double> pmf(n, 0.0);
+    double p = std::exp(-mean);
+    double h = 0;
+    for (std::size_t k = 0; k < n; ++k) {
+        if (k > 0) p *= mean / static_cast<double>(k);
+        pmf[k] = p;
+        if (p > 0) h -= p * std::log2(p);
+    }
+    if (pmf_out) *pmf_out = std::move(pmf);
+    return h;
+}
+
+}  // namespace
+
+synthetic_recording make_frozen_bins(const frozen_bins_spec& spec) {
+    check_session(spec.session);
+    if (!(spec.bin_ms > 0)) throw usage_error("--bin-ms must be positive");
+    if (spec.rates_hz.empty()) throw usage_error("--rate-hz: give at least one rate");
+    synthetic_recording out;
+    out.kind = "frozen-bins";
+    random_stream rng(derive_seed(spec.seed, {1}));
+    const seconds dt = spec.bin_ms / 1000.0;
+    const std::size_t bins = static_cast<std::size_t>(std::floor(spec.session.duration / dt + 1e-9));
+    const std::size_t n_trials = spec.session.trials;
+    out.rec.units.resize(spec.rates_hz.size());
+    for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) out.rec.units[u].id = unit_name(u);
+    lay_out_session(out.rec, spec.session, n_trials, rng);
+
+    for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) {
+        const double mean_p = spec.rates_hz[u] * dt;
+        const double m = per_unit(spec.modulations, u, "--modulation");
+        if (!(m >= 0 && m <= 10)) throw usage_error("--modulation must lie in [0, 10]");
+        if (!(mean_p > 0) || mean_p > 0.5) {
+            throw usage_error("--rate-hz " + std::to_string(spec.rates_hz[u]) + " with --bin-ms " +
+                              std::to_string(spec.bin_ms) + " gives a mean spike probability per bin outside (0, 0.5]");
+        }
+        std::vector<double> p(bins);
+        // Gamma-distributed gain with mean 1 and coefficient of variation m (shape 1/m^2).
+        for (auto& x: p) x = m > 0 ? std::min(1.0, mean_p * m * m * gamma_draw(1 / (m * m), rng)) : mean_p;
+        auto& spikes = out.rec.units[u].spike_times;
+        for (std::size_t k = 0; k < n_trials; ++k) {
+            for (std::size_t b = 0; b < bins; ++b) {
+                if (rng.uniform() < p[b]) {
+                    // Keep the spike clear of the bin edges so rounding cannot move it to a neighbour.
+                    const double within = 0.05 + 0.9 * rng.uniform();
+                    spikes.push_back(out.rec.trial_start[k] + (static_cast<double>(b) + within) * dt);
+                }
+            }
+        }
+        unit_truth truth;
+        truth.unit = out.rec.units[u].id;
+        const double pbar = std::accumulate(p.begin(), p.end(), 0.0) / static_cast<double>(bins);
+        double noise = 0;
+        for (double x: p) noise += binary_entropy(x);
+        noise /= static_cast<double>(bins);
+        const double total = binary_entropy(pbar);
+        truth.values["bin_ms"] = spec.bin_ms;
+        truth.values["mean_rate_hz"] = pbar / dt;
+        truth.values["total_entropy_rate_bits_per_s"] = total / dt;
+        truth.values["noise_entropy_rate_bits_per_s"] = noise / dt;
+        truth.values["info_rate_bits_per_s"] = (total - noise) / dt;
+        truth.values["bits_per_spike"] = (total - noise) / pbar;
+        for (int L = 1; L <= 8 && static_cast<std::size_t>(L) <= bins; ++L) {
+            const std::size_t positions = bins - static_cast<std::size_t>(L) + 1;
+            double noise_L = 0;
+            for (std::size_t t = 0; t < positions; ++t) {
+                for (int j = 0; j < L; ++j) noise_L += binary_entropy(p[t + static_cast<std::size_t>(j)]);
+            }
+            noise_L /= static_cast<double>(positions);
+            const double total_L = pooled_binary_word_entropy(p, L);
+            truth.by_letters["total_entropy_bits"].push_back(total_L);
+            truth.by_letters["noise_entropy_bits"].push_back(noise_L);
+            truth.by_letters["info_bits"].push_back(total_L - noise_L);
+        }
+        out.truth.push_back(std::move(truth));
+    }
+    finish(out.rec);
+    return out;
+}
+
+double single_spike_information(const std::vector<double>& rate) {
+    if (rate.empty()) return 0;
+    const double mean = std::accumulate(rate.begin(), rate.end(), 0.0) / static_cast<double>(rate.size());
+    if (!(mean > 0)) return 0;
+    double sum = 0;
+    for (double r: rate) {
+        if (r > 0) sum += (r / mean) * std::log2(r / mean);
+    }
+    return sum / static_cast<double>(rate.size());
+}
+
+synthetic_recording make_poisson(const poisson_spec& spec) {
+    check_session(spec.session);
+    if (!(spec.correlation_ms > 0) || !(spec.resolution_ms > 0)) {
+        throw usage_error("--correlation-ms and --resolution-ms must be positive");
+    }
+    if (spec.rates_hz.empty()) throw usage_error("--rate-hz: give at least one rate");
+    synthetic_recording out;
+    out.kind = "poisson";
+    random_stream rng(derive_seed(spec.seed, {2}));
+    const seconds step = spec.resolution_ms / 1000.0;
+    const std::size_t steps = static_cast<std::size_t>(std::floor(spec.session.duration / step + 1e-9));
+    const std::size_t n_trials = spec.session.trials;
+    out.rec.units.resize(spec.rates_hz.size());
+    for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) out.rec.units[u].id = unit_name(u);
+    lay_out_session(out.rec, spec.session, n_trials, rng);
+
+    const double a = std::exp(-spec.resolution_ms / spec.correlation_ms);
+    for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) {
+        const double m = per_unit(spec.modulations, u, "--modulation");
+        if (!(m >= 0)) throw usage_error("--modulation must not be negative");
+        if (!(spec.rates_hz[u] > 0)) throw usage_error("--rate-hz must be positive");
+        std::vector<double> rate(steps);
+        double g = gaussian(rng);
+        for (auto& r: rate) {
+            r = std::max(0.0, spec.rates_hz[u] * (1 + m * g));
+            g = a * g + std::sqrt(1 - a * a) * gaussian(rng);
+        }
+        // Time rescaling: unit-rate exponential gaps in cumulative intensity, mapped back to time.
+        auto& spikes = out.rec.units[u].spike_times;
+        for (std::size_t k = 0; k < n_trials; ++k) {
+            double next = rng.exponential();
+            double cumulative = 0;
+            for (std::size_t i = 0; i < steps; ++i) {
+                const double mass = rate[i] * step;
+                while (next < cumulative + mass) {
+                    const double within = (next - cumulative) / mass;
+                    spikes.push_back(out.rec.trial_start[k] + (static_cast<double>(i) + within) * step);
+                    next += rng.exponential();
+                }
+                cumulative += mass;
+            }
+        }
+        unit_truth truth;
+        truth.unit = out.rec.units[u].id;
+        const double mean = std::accumulate(rate.begin(), rate.end(), 0.0) / static_cast<double>(steps);
+        const double one_spike = single_spike_information(rate);
+        truth.values["mean_rate_hz"] = mean;
+        truth.values["single_spike_info_bits"] = one_spike;
+        truth.values["single_spike_info_rate_bits_per_s"] = mean * one_spike;
+        // Exact single-letter information at a few bin widths: the pooled count distribution over
+        // bins against the Poisson count distribution of each bin.
+        for (double bin_ms: {0.5, 1.0, 2.0, 4.0}) {
+            const auto per_bin = static_cast<std::size_t>(std::llround(bin_ms / spec.resolution_ms));
+            if (per_bin == 0 || std::abs(static_cast<double>(per_bin) * spec.resolution_ms - bin_ms) > 1e-9) continue;
+            const std::size_t bins = steps / per_bin;
+            const std::size_t n = 40;
+            std::vector<double> pooled(n, 0.0), pmf;
+            double noise = 0;
+            for (std::size_t b = 0; b < bins; ++b) {
+                double lambda = 0;
+                for (std::size_t i = b * per_bin; i < (b + 1) * per_bin; ++i) lambda += rate[i] * step;
+                noise += poisson_entropy_bits(lambda, &pmf, n);
+                for (std::size_t c = 0; c < n; ++c) pooled[c] += pmf[c];
+            }
+            double total = 0;
+            for (double x: pooled) {
+                const double q = x / static_cast<double>(bins);
+                if (q > 0) total -= q * std::log2(q);
+            }
+            noise /= static_cast<double>(bins);
+            char key[64];
+            std::snprintf(key, sizeof key, "letter_info_bits_at_%gms", bin_ms);
+            truth.values[key] = total - noise;
+        }
+        out.truth.push_back(std::move(truth));
+    }
+    finish(out.rec);
+    return out;
+}
+
+double poisson_count_information(const std::vector<double>& means) {
+    if (means.empty()) return 0;
+    const double largest = *std::max_element(means.begin(), means.end());
+    const auto n = static_cast<std::size_t>(largest + 20 * std::sqrt(largest) + 40);
+    std::vector<double> pooled(n, 0.0), pmf;
+    double noise = 0;
+    for (double mu: means) {
+        noise += poisson_entropy_bits(mu, &pmf, n);
+        for (std::size_t c = 0; c < n; ++c) pooled[c] += pmf[c];
+    }
+    const double k = static_cast<double>(means.size());
+    double total = 0;
+    for (double x: pooled) {
+        const double q = x / k;
+        if (q > 0) total -= q * std::log2(q);
+    }
+    return total - noise / k;
+}
+
+synthetic_recording make_conditions(const conditions_spec& spec) {
+    check_session(spec.session);
+    if (spec.labels.empty() || spec.trials_per_condition < 1) {
+        throw usage_error("conditions need at least one label and one trial per condition");
+    }
+    if (spec.means.empty()) throw usage_error("--means: give one row of means per unit");
+    for (const auto& row: spec.means) {
+        if (row.size() != spec.labels.size()) {
+            throw usage_error("--means: each unit needs one mean per condition (" + std::to_string(spec.labels.size()) + ")");
+        }
+        for (double mu: row) {
+            if (!(mu >= 0)) throw usage_error("--means must not be negative");
+        }
+    }
+    synthetic_recording out;
+    out.kind = "conditions";
+    random_stream rng(derive_seed(spec.seed, {3}));
+    std::vector<std::size_t> condition;
+    for (std::size_t c = 0; c < spec.labels.size(); ++c) {
+        for (std::size_t i = 0; i < spec.trials_per_condition; ++i) condition.push_back(c);
+    }
+    shuffle(condition, rng);
+    out.rec.units.resize(spec.means.size());
+    for (std::size_t u = 0; u < spec.means.size(); ++u) out.rec.units[u].id = unit_name(u);
+    lay_out_session(out.rec, spec.session, condition.size(), rng);
+    for (std::size_t c: condition) out.rec.stimulus.push_back(spec.labels[c]);
+    for (std::size_t u = 0; u < spec.means.size(); ++u) {
+        auto& spikes = out.rec.units[u].spike_times;
+        for (std::size_t k = 0; k < condition.size(); ++k) {
+            const std::uint64_t n = poisson_draw(spec.means[u][condition[k]], rng);
+            for (std::uint64_t i = 0; i < n; ++i) {
+                spikes.push_back(out.rec.trial_start[k] + rng.uniform() * spec.session.duration);
+            }
+        }
+        unit_truth truth;
+        truth.unit = out.rec.units[u].id;
+        truth.values["count_info_bits"] = poisson_count_information(spec.means[u]);
+        truth.values["stimulus_entropy_bits"] = std::log2(static_cast<double>(spec.labels.size()));
+        out.truth.push_back(std::move(truth));
+    }
+    finish(out.rec);
+    return out;
+}
+
+}  // namespace rastrum
