@@ -13,7 +13,7 @@ int run_synth(int argc, char** argv) {
     std::vector<std::string> means_text;
     session_shape session;
     std::uint64_t seed = 1;
-    double bin_ms = 2.0, correlation_ms = 20.0, resolution_ms = 0.1;
+    double bin_ms = 2.0, correlation_ms = 20.0, resolution_ms = 0.1, refractory = 0.0;
     std::size_t per_condition = 30;
     po::options_description options("Options");
     options.add_options()
@@ -31,7 +31,9 @@ int run_synth(int argc, char** argv) {
         ("rate-hz", po::value(&rates_text)->default_value(rates_text), "mean rate of each unit, comma-separated: one unit per value")
         ("modulation", po::value(&modulation_text)->default_value(modulation_text),
          "modulation, one for all units or one per unit: the coefficient of variation of the spike probability across bins (frozen-bins) or of the rate over time (poisson)")
-        ("bin-ms", po::value(&bin_ms)->default_value(bin_ms), "frozen-bins: width of the independent bins in ms")
+        ("bin-ms", po::value(&bin_ms)->default_value(bin_ms), "frozen-bins: width of the bins in ms")
+        ("refractory", po::value(&refractory)->default_value(refractory),
+         "frozen-bins: fraction by which a spike lowers the spike probability of the next bin (0..1)")
         ("correlation-ms", po::value(&correlation_ms)->default_value(correlation_ms), "poisson: time constant of the rate's fluctuations")
         ("resolution-ms", po::value(&resolution_ms)->default_value(resolution_ms), "poisson: steps on which the rate is held constant")
         ("labels", po::value(&labels_text)->default_value(labels_text), "conditions: stimulus labels, comma-separated")
@@ -57,8 +59,9 @@ int run_synth(int argc, char** argv) {
         parameters["rate_hz"] = rates;
         parameters["modulation"] = modulations;
         if (kind == "frozen-bins") {
-            frozen_bins_spec spec{session, bin_ms, rates, modulations, seed};
+            frozen_bins_spec spec{session, bin_ms, rates, modulations, refractory, seed};
             parameters["bin_ms"] = bin_ms;
+            parameters["refractory"] = refractory;
             synth = make_frozen_bins(spec);
         } else {
             poisson_spec spec{session, rates, modulations, correlation_ms, resolution_ms, seed};

@@ -23,12 +23,15 @@ struct session_shape {
 /// at most one spike, with probability p_t = min(1, p g_t), p = rate dt, where the gain g_t has a
 /// gamma distribution with mean 1 and coefficient of variation m (the modulation), drawn once per
 /// bin and unit and frozen across trials. m = 0 is homogeneous firing; m = 1 makes g exponential;
-/// larger m makes responses sparser and more reliable. The exact answers use the realised p_t.
+/// larger m makes responses sparser and more reliable. With `refractory` R > 0 the probability
+/// right after a spike is p_t (1 - R), so letters form a Markov chain along each trial and the
+/// information per word has a 1/L term. The exact answers use the realised p_t.
 struct frozen_bins_spec {
     session_shape session;
     double bin_ms = 2.0;
     std::vector<double> rates_hz{20.0};      // one unit per entry
     std::vector<double> modulations{0.8};    // one per unit, or one for all
+    double refractory = 0;                   // 0..1
     std::uint64_t seed = 1;
 };
 
