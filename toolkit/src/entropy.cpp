@@ -8,6 +8,7 @@ namespace rastrum {
 namespace {
 constexpr count table_size = 4096;
 
+// Both tables serve the hot loops of the direct method, where counts are mostly small.
 const std::array<double, table_size>& n_log2_n_table() {
     static const auto table = [] {
         std::array<double, table_size> t{};
@@ -16,6 +17,17 @@ const std::array<double, table_size>& n_log2_n_table() {
     }();
     return table;
 }
+
+const std::array<double, table_size>& log2_table() {
+    static const auto table = [] {
+        std::array<double, table_size> t{};
+        for (count n = 1; n < table_size; ++n) t[n] = std::log2(static_cast<double>(n));
+        return t;
+    }();
+    return table;
+}
+
+double log2_of(count n) { return n < table_size ? log2_table()[n] : std::log2(static_cast<double>(n)); }
 }  // namespace
 
 double n_log2_n(count n) {
@@ -48,8 +60,7 @@ count_summary summarize_counts(const std::vector<count>& counts) {
 
 double plugin_entropy(const count_summary& s) {
     if (s.samples == 0) return 0;
-    const double n = static_cast<double>(s.samples);
-    return std::log2(n) - s.sum_n_log2_n / n;
+    return log2_of(s.samples) - s.sum_n_log2_n / static_cast<double>(s.samples);
 }
 
 double miller_madow_entropy(const count_summary& s) {
@@ -64,7 +75,7 @@ double jackknife_entropy(const count_summary& s) {
     // Leaving out one sample of a word seen n_i times gives
     //   H_(-i) = log2(N-1) - (S - f(n_i) + f(n_i - 1)) / (N-1),  S = sum f(n_j);
     // summing n_i H_(-i) over words gives N log2(N-1) - (N S - sum n_i (f(n_i) - f(n_i - 1))) / (N-1).
-    const double sum_left_out = n * std::log2(n - 1) - (n * s.sum_n_log2_n - s.sum_leave_one_out) / (n - 1);
+    const double sum_left_out = n * log2_of(s.samples - 1) - (n * s.sum_n_log2_n - s.sum_leave_one_out) / (n - 1);
     const double mean_left_out = sum_left_out / n;
     return n * plugin_entropy(s) - (n - 1) * mean_left_out;
 }
