@@ -3,6 +3,7 @@
 #include <rastrum/extrapolation.hpp>
 #include <rastrum/trial_partition.hpp>
 #include <rastrum/word_counting.hpp>
+#include <rastrum/word_order.hpp>
 #include <rastrum/words.hpp>
 
 #include <algorithm>
@@ -57,19 +58,20 @@ struct subset_entropies {
     count distinct = 0;
 };
 
-using entropy_estimator = double (*)(const count_summary&);
-constexpr std::array<entropy_estimator, subset_estimator_count> estimators{plugin_entropy, miller_madow_entropy,
-                                                                          jackknife_entropy};
+using entropy_estimator = double (*)(const mean_summary&);
+const std::array<entropy_estimator, subset_estimator_count> estimators{
+    static_cast<entropy_estimator>(plugin_entropy), static_cast<entropy_estimator>(miller_madow_entropy),
+    static_cast<entropy_estimator>(jackknife_entropy)};
 
 class length_measurer {
 public:
     explicit length_measurer(const std::vector<nested_split>& splits):
         cells_(splits.size() * nested_subsets), counter_(splits) {}
 
-    subset_entropies measure(const word_codes& words) {
+    subset_entropies measure(const word_codes& words, const word_order& order) {
         subset_entropies e;
-        measure_noise(words, e);
-        measure_total(words, e);
+        measure_noise(words, order, e);
+        measure_total(words, order, e);
         return e;
     }
 
@@ -78,48 +80,44 @@ private:
         return counter_.summary(c / nested_subsets, static_cast<int>(c % nested_subsets));
     }
 
-    // The word at one start position, across the trials of each subset; averaged over positions.
-    void measure_noise(const word_codes& words, subset_entropies& e) {
-        const std::size_t n_trials = words.trials();
-        const std::size_t positions = words.positions();
-        for (auto& v: e.noise) v.assign(cells_, 0.0);
-        scratch_.resize(n_trials);
-        for (std::size_t t = 0; t < positions; ++t) {
-            const word_code* codes = words.at_position(t);
-            for (std::size_t k = 0; k < n_trials; ++k) scratch_[k] = {codes[k], static_cast<std::uint32_t>(k)};
-            sort_by_code(scratch_);
-            counter_.count_sorted(scratch_);
-            for (int m = 0; m < subset_estimator_count; ++m) {
-                auto& out = e.noise[static_cast<std::size_t>(m)];
-                for (std::size_t c = 0; c < cells_; ++c) out[c] += estimators[static_cast<std::size_t>(m)](cell(c));
-            }
-        }
-        for (auto& v: e.noise) {
-            for (double& h: v) h /= static_cast<double>(positions);
+    void estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out,
+                        const std::vector<count_summary>& merged, double histograms) const {
+        for (std::size_t c = 0; c < cells_; ++c) {
+            const count samples_each = static_cast<count>(static_cast<double>(merged[c].samples) / histograms + 0.5);
+            const mean_summary mean = mean_of_histograms(merged[c], histograms, samples_each);
+            for (std::size_t m = 0; m < static_cast<std::size_t>(subset_estimator_count); ++m) out[m][c] = estimators[m](mean);
         }
     }
 
-    // Words pooled over every start position and every trial of each subset.
-    void measure_total(const word_codes& words, subset_entropies& e) {
-        const std::size_t n_trials = words.trials();
-        const std::size_t n = words.positions() * n_trials;
-        scratch_.resize(n);
-        const auto& all = words.all();
-        for (std::size_t i = 0; i < n; ++i) scratch_[i] = {all[i], static_cast<std::uint32_t>(i % n_trials)};
-        sort_by_code(scratch_);
-        counter_.count_sorted(scratch_);
-        for (int m = 0; m < subset_estimator_count; ++m) {
-            auto& out = e.total[static_cast<std::size_t>(m)];
-            out.resize(cells_);
-            for (std::size_t c = 0; c < cells_; ++c) out[c] = estimators[static_cast<std::size_t>(m)](cell(c));
+    // The word at one start position, across the trials of each subset; averaged over positions by
+    // averaging the histograms' sums (see mean_summary).
+    void measure_noise(const word_codes& words, const word_order& order, subset_entropies& e) {
+        const auto n_trials = static_cast<std::uint32_t>(words.trials());
+        const std::size_t positions = words.positions();
+        merged_.assign(cells_, count_summary{});
+        for (std::size_t t = 0; t < positions; ++t) {
+            counter_.count_sorted(words.at_position(t), order.at_position(t), n_trials, n_trials);
+            for (std::size_t c = 0; c < cells_; ++c) merged_[c].merge(cell(c));
         }
+        for (auto& v: e.noise) v.assign(cells_, 0.0);
+        estimate_cells(e.noise, merged_, static_cast<double>(positions));
+    }
+
+    // Words pooled over every start position and every trial of each subset.
+    void measure_total(const word_codes& words, const word_order& order, subset_entropies& e) {
+        const auto& pooled = order.pooled();
+        counter_.count_sorted(words.all().data(), pooled.data(), pooled.size(), static_cast<std::uint32_t>(words.trials()));
+        merged_.assign(cells_, count_summary{});
+        for (std::size_t c = 0; c < cells_; ++c) merged_[c] = cell(c);
+        for (auto& v: e.total) v.assign(cells_, 0.0);
+        estimate_cells(e.total, merged_, 1.0);
         e.samples = cell(0).samples;
         e.distinct = cell(0).distinct;
     }
 
     std::size_t cells_;
     subset_counter counter_;
-    std::vector<word_occurrence> scratch_;
+    std::vector<count_summary> merged_;
 };
 
 /// Extrapolation to infinite data from all trials, the halves and the quarters of every split;
@@ -244,11 +242,15 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
     std::vector<std::vector<double>> total_half(n_halves), noise_half(n_halves);
 
     word_codes words(letters, std::max<word_code>(2, word_code{letters.largest} + 1), settings.letters_max);
+    word_order order(words);
     length_measurer measurer(splits);
     for (int L = 1; L <= settings.letters_max; ++L) {
-        if (L > 1) words.grow();
+        if (L > 1) {
+            words.grow();
+            order.update(words);
+        }
         if (L < settings.letters_min) continue;
-        const subset_entropies e = measurer.measure(words);
+        const subset_entropies e = measurer.measure(words, order);
 
         letters_estimate le;
         le.letters = L;

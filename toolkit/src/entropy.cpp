@@ -8,7 +8,7 @@ namespace rastrum {
 namespace {
 constexpr count table_size = 4096;
 
-// Both tables serve the hot loops of the direct method, where counts are mostly small.
+// The table serves the counting loops of the direct method, where counts are mostly small.
 const std::array<double, table_size>& n_log2_n_table() {
     static const auto table = [] {
         std::array<double, table_size> t{};
@@ -17,17 +17,6 @@ const std::array<double, table_size>& n_log2_n_table() {
     }();
     return table;
 }
-
-const std::array<double, table_size>& log2_table() {
-    static const auto table = [] {
-        std::array<double, table_size> t{};
-        for (count n = 1; n < table_size; ++n) t[n] = std::log2(static_cast<double>(n));
-        return t;
-    }();
-    return table;
-}
-
-double log2_of(count n) { return n < table_size ? log2_table()[n] : std::log2(static_cast<double>(n)); }
 }  // namespace
 
 double n_log2_n(count n) {
@@ -36,8 +25,7 @@ double n_log2_n(count n) {
     return x * std::log2(x);
 }
 
-void count_summary::add(count n) {
-    if (n == 0) return;
+void count_summary::add_several(count n) {
     samples += n;
     ++distinct;
     const double f = n_log2_n(n);
@@ -58,26 +46,39 @@ count_summary summarize_counts(const std::vector<count>& counts) {
     return s;
 }
 
-double plugin_entropy(const count_summary& s) {
-    if (s.samples == 0) return 0;
-    return log2_of(s.samples) - s.sum_n_log2_n / static_cast<double>(s.samples);
+mean_summary mean_of_histograms(const count_summary& total, double histograms, count samples_each) {
+    return {static_cast<double>(samples_each), static_cast<double>(total.distinct) / histograms,
+            total.sum_n_log2_n / histograms, total.sum_leave_one_out / histograms};
 }
 
-double miller_madow_entropy(const count_summary& s) {
-    if (s.samples == 0) return 0;
-    return plugin_entropy(s) +
-           static_cast<double>(s.distinct - 1) / (2.0 * static_cast<double>(s.samples) * std::log(2.0));
+namespace {
+mean_summary as_mean(const count_summary& s) {
+    return {static_cast<double>(s.samples), static_cast<double>(s.distinct), s.sum_n_log2_n, s.sum_leave_one_out};
+}
+}  // namespace
+
+double plugin_entropy(const mean_summary& s) {
+    if (s.samples <= 0) return 0;
+    return std::log2(s.samples) - s.sum_n_log2_n / s.samples;
 }
 
-double jackknife_entropy(const count_summary& s) {
+double miller_madow_entropy(const mean_summary& s) {
+    if (s.samples <= 0) return 0;
+    return plugin_entropy(s) + (s.distinct - 1) / (2.0 * s.samples * std::log(2.0));
+}
+
+double jackknife_entropy(const mean_summary& s) {
     if (s.samples < 2) return plugin_entropy(s);
-    const double n = static_cast<double>(s.samples);
+    const double n = s.samples;
     // Leaving out one sample of a word seen n_i times gives
     //   H_(-i) = log2(N-1) - (S - f(n_i) + f(n_i - 1)) / (N-1),  S = sum f(n_j);
     // summing n_i H_(-i) over words gives N log2(N-1) - (N S - sum n_i (f(n_i) - f(n_i - 1))) / (N-1).
-    const double sum_left_out = n * log2_of(s.samples - 1) - (n * s.sum_n_log2_n - s.sum_leave_one_out) / (n - 1);
-    const double mean_left_out = sum_left_out / n;
-    return n * plugin_entropy(s) - (n - 1) * mean_left_out;
+    const double sum_left_out = n * std::log2(n - 1) - (n * s.sum_n_log2_n - s.sum_leave_one_out) / (n - 1);
+    return n * plugin_entropy(s) - (n - 1) * sum_left_out / n;
 }
+
+double plugin_entropy(const count_summary& s) { return plugin_entropy(as_mean(s)); }
+double miller_madow_entropy(const count_summary& s) { return miller_madow_entropy(as_mean(s)); }
+double jackknife_entropy(const count_summary& s) { return jackknife_entropy(as_mean(s)); }
 
 }  // namespace rastrum

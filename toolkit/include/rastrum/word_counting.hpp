@@ -28,6 +28,10 @@ public:
     /// Counts `words` (sorted by code) into fresh summaries, replacing the previous ones.
     void count_sorted(const std::vector<word_occurrence>& words);
 
+    /// The same for words given by position in an array: word i of the sorted sequence has code
+    /// codes[index[i]] and comes from trial index[i] % trials.
+    void count_sorted(const word_code* codes, const std::uint32_t* index, std::size_t n, std::uint32_t trials);
+
     /// Summary of the histogram of subset `subset_index(level, block)` of split `split`.
     const count_summary& summary(std::size_t split, int subset) const {
         return summaries_[split * nested_subsets + static_cast<std::size_t>(subset)];
