@@ -1,9 +1,13 @@
 // End-to-end: the real rastrum command in a child process, on real files.
+#include "bad_recordings.hpp"
 #include "cli_runner.hpp"
+
+#include <rastrum/recording_hdf5.hpp>
 
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
 
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 
@@ -152,4 +156,35 @@ TEST(cli, too_little_data_exits_4_without_output) {
     EXPECT_EQ(r.exit_code, 4) << r.err;
     EXPECT_NE(r.err.find("at least 8 trials"), std::string::npos) << r.err;
     EXPECT_FALSE(file_exists(folder + "/d.json"));
+}
+
+TEST(cli, malformed_recordings_exit_3_naming_the_hdf5_path) {
+    const std::string folder = fresh_folder("cli-malformed");
+    for (const auto& bad: write_bad_recordings(folder)) {
+        for (const std::string command: {"survey ", "direct "}) {
+            const std::string extra = command == "direct " ? " --bin-ms 2 --letters 1-2" : "";
+            const auto r = run_rastrum(command + bad.path + extra + " --json " + folder + "/out.json");
+            EXPECT_EQ(r.exit_code, 3) << command << bad.path << "\n" << r.err;
+            EXPECT_NE(r.err.find(bad.path), std::string::npos) << r.err;
+            EXPECT_NE(r.err.find(bad.names), std::string::npos) << "message should name " << bad.names << ": " << r.err;
+            EXPECT_NE(r.err.find("expected"), std::string::npos) << r.err;
+            EXPECT_FALSE(file_exists(folder + "/out.json"));
+        }
+    }
+}
+
+// The bundled demo recording is what the project's own generator makes with the documented command.
+TEST(cli, demo_recording_is_made_by_the_documented_command) {
+    const std::string folder = fresh_folder("cli-demo");
+    const std::string script = std::string(RASTRUM_SOURCE_DIR) + "/demo-recordings/make-demo-recordings.sh";
+    ASSERT_EQ(std::system(("bash '" + script + "' '" + RASTRUM_BINARY + "' '" + folder + "' 2>/dev/null").c_str()), 0);
+    const auto fresh = rastrum::read_recording_hdf5(folder + "/flicker-tectum.h5");
+    const auto bundled = rastrum::read_recording_hdf5(std::string(RASTRUM_SOURCE_DIR) + "/demo-recordings/flicker-tectum.h5");
+    ASSERT_EQ(fresh.units.size(), bundled.units.size());
+    for (std::size_t u = 0; u < fresh.units.size(); ++u) {
+        EXPECT_EQ(fresh.units[u].id, bundled.units[u].id);
+        EXPECT_EQ(fresh.units[u].spike_times, bundled.units[u].spike_times) << fresh.units[u].id;
+    }
+    EXPECT_EQ(fresh.trial_start, bundled.trial_start);
+    EXPECT_EQ(fresh.trial_stop, bundled.trial_stop);
 }

@@ -6,7 +6,7 @@ Markov letters with frozen spike probabilities, so the information rate is known
 `rastrum direct` with several --bias-tolerance values and with a fit over every word length, and
 prints a Markdown table of relative errors of the information rate, the fit ranges chosen, and
 whether the 95% interval held the truth. Usage:
-    sampling_rule.py PATH_TO_rastrum [--quick]
+    sampling_rule.py PATH_TO_rastrum [--quick] [--tolerances=0.01,0.03,...]
 The table in notes/methods.md was made by this script."""
 import json
 import subprocess
@@ -16,6 +16,9 @@ import tempfile
 RASTRUM = sys.argv[1]
 QUICK = "--quick" in sys.argv
 TOLERANCES = [0.01, 0.03, 0.1, 0.3]
+for arg in sys.argv[2:]:
+    if arg.startswith("--tolerances="):
+        TOLERANCES = [float(x) for x in arg.split("=", 1)[1].split(",")]
 
 SCENARIOS = [
     # (label, synth options, bin ms, letters)
@@ -95,4 +98,5 @@ def subset_estimators():
 
 if __name__ == "__main__":
     main()
-    subset_estimators()
+    if not any(a.startswith("--tolerances=") for a in sys.argv):
+        subset_estimators()

@@ -304,11 +304,15 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
         if (longest_good == 0) {
             longest_good = settings.letters_min;
             const auto& first = out.by_letters.front();
+            const double scale = std::max(std::abs(first.info_bits), 2 * first.info_se_bits);
             out.warnings.push_back(
-                "undersampled at every word length: already at " + std::to_string(longest_good) +
-                " letters the information depends on the bias correction (plug-in and jackknife extrapolations differ by " +
-                fixed(first.estimator_spread_bits, 4) + " of " + fixed(first.info_bits, 4) +
-                " bits); the information rate is not reliable (more trials or a wider bin would help)");
+                "undersampled: no word length passes the sampling rule; even for " + std::to_string(longest_good) +
+                "-letter words the plug-in and jackknife bias corrections differ by " +
+                fixed(first.estimator_spread_bits, 4) + " bits per word, " +
+                fixed(100 * first.estimator_spread_bits / scale, 1) +
+                "% of the information (or of twice its standard error, if larger; tolerance " +
+                fixed(100 * settings.bias_tolerance, 1) +
+                "%): the bias left in the rate is uncertain by about that much (more trials or a wider bin would help)");
         }
         out.fit_letters = {std::max(settings.letters_min, (longest_good + 1) / 2), longest_good};
     }
@@ -339,8 +343,9 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
     out.info_rate_ci95 = {out.info_rate - 1.96 * out.info_rate_se, out.info_rate + 1.96 * out.info_rate_se};
 
     if (out.fit_letters.first == out.fit_letters.second) {
-        out.warnings.push_back("the rate comes from words of " + std::to_string(out.fit_letters.first) +
-                               " letters only: no extrapolation to infinite word length");
+        out.warnings.push_back("the rate comes from " + std::to_string(out.fit_letters.first) +
+                               "-letter words alone, without extrapolation to infinite word length: correlations "
+                               "between bins further apart are not counted");
     }
     if (out.fit_letters_from_user) {
         for (const auto& le: out.by_letters) {
@@ -354,6 +359,9 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
     if (n_trials < 50) {
         out.warnings.push_back("only " + std::to_string(n_trials) +
                                " trials: noise entropies of all but short words are strongly undersampled");
+    }
+    if (out.info_rate_ci95.first <= 0 && out.info_rate_ci95.second >= 0) {
+        out.warnings.push_back("the 95% interval includes 0: no information about the stimulus is detectable");
     }
     return out;
 }

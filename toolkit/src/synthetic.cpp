@@ -1,3 +1,4 @@
+#include <rastrum/binning.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/random.hpp>
 #include <rastrum/synthetic.hpp>
@@ -90,6 +91,17 @@ void lay_out_session(recording& rec, const session_shape& s, std::size_t n_trial
             }
         }
     }
+}
+
+/// A recording with `units` units named u1, u2, ... and the session laid out.
+synthetic_recording start_recording(const char* kind, const session_shape& session, std::size_t units,
+                                    std::size_t n_trials, random_stream& rng) {
+    synthetic_recording out;
+    out.kind = kind;
+    out.rec.units.resize(units);
+    for (std::size_t u = 0; u < units; ++u) out.rec.units[u].id = unit_name(u);
+    lay_out_session(out.rec, session, n_trials, rng);
+    return out;
 }
 
 void finish(recording& rec) {
@@ -197,15 +209,11 @@ synthetic_recording make_frozen_bins(const frozen_bins_spec& spec) {
     check_session(spec.session);
     if (!(spec.bin_ms > 0)) throw usage_error("--bin-ms must be positive");
     if (spec.rates_hz.empty()) throw usage_error("--rate-hz: give at least one rate");
-    synthetic_recording out;
-    out.kind = "frozen-bins";
     random_stream rng(derive_seed(spec.seed, {1}));
     const seconds dt = spec.bin_ms / 1000.0;
-    const std::size_t bins = static_cast<std::size_t>(std::floor(spec.session.duration / dt + 1e-9));
+    const std::size_t bins = whole_bins(spec.session.duration, dt);
     const std::size_t n_trials = spec.session.trials;
-    out.rec.units.resize(spec.rates_hz.size());
-    for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) out.rec.units[u].id = unit_name(u);
-    lay_out_session(out.rec, spec.session, n_trials, rng);
+    synthetic_recording out = start_recording("frozen-bins", spec.session, spec.rates_hz.size(), n_trials, rng);
 
     for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) {
         const double mean_p = spec.rates_hz[u] * dt;
@@ -276,15 +284,11 @@ synthetic_recording make_poisson(const poisson_spec& spec) {
         throw usage_error("--correlation-ms and --resolution-ms must be positive");
     }
     if (spec.rates_hz.empty()) throw usage_error("--rate-hz: give at least one rate");
-    synthetic_recording out;
-    out.kind = "poisson";
     random_stream rng(derive_seed(spec.seed, {2}));
     const seconds step = spec.resolution_ms / 1000.0;
-    const std::size_t steps = static_cast<std::size_t>(std::floor(spec.session.duration / step + 1e-9));
+    const std::size_t steps = whole_bins(spec.session.duration, step);
     const std::size_t n_trials = spec.session.trials;
-    out.rec.units.resize(spec.rates_hz.size());
-    for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) out.rec.units[u].id = unit_name(u);
-    lay_out_session(out.rec, spec.session, n_trials, rng);
+    synthetic_recording out = start_recording("poisson", spec.session, spec.rates_hz.size(), n_trials, rng);
 
     const double a = std::exp(-spec.resolution_ms / spec.correlation_ms);
     for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) {
@@ -383,17 +387,13 @@ synthetic_recording make_conditions(const conditions_spec& spec) {
             if (!(mu >= 0)) throw usage_error("--means must not be negative");
         }
     }
-    synthetic_recording out;
-    out.kind = "conditions";
     random_stream rng(derive_seed(spec.seed, {3}));
     std::vector<std::size_t> condition;
     for (std::size_t c = 0; c < spec.labels.size(); ++c) {
         for (std::size_t i = 0; i < spec.trials_per_condition; ++i) condition.push_back(c);
     }
     shuffle(condition, rng);
-    out.rec.units.resize(spec.means.size());
-    for (std::size_t u = 0; u < spec.means.size(); ++u) out.rec.units[u].id = unit_name(u);
-    lay_out_session(out.rec, spec.session, condition.size(), rng);
+    synthetic_recording out = start_recording("conditions", spec.session, spec.means.size(), condition.size(), rng);
     for (std::size_t c: condition) out.rec.stimulus.push_back(spec.labels[c]);
     for (std::size_t u = 0; u < spec.means.size(); ++u) {
         auto& spikes = out.rec.units[u].spike_times;
