@@ -15,41 +15,49 @@ namespace rastrum::app {
 int run_direct(int argc, char** argv) {
     const direct_request defaults;
     std::string file, bin_text, letters_text, fit_text, stimulus, json_out, csv_out, subset_text;
+    std::string splits_text = std::to_string(defaults.settings.splits), seed_text = std::to_string(defaults.settings.seed),
+                threads_text = "0", rotations_text = "0";
     direct_request request;
     bool quiet = false;
     po::options_description options("Options");
     options.add_options()
-        ("file", po::value(&file)->required(), "the recording (HDF5, native layout)")
         ("unit", po::value(&request.units)->composing(), "analyse this unit (repeat for several); every unit when absent")
         ("stimulus", po::value(&stimulus), "only trials with this stimulus label (the frozen stimulus); all trials when absent")
         ("bin-ms", po::value(&bin_text)->required(), "bin width(s) in ms, comma-separated, e.g. 1,2,4")
-        ("letters", po::value(&letters_text)->required(), "word lengths A-B in letters (bins), e.g. 1-12")
+        ("letters", po::value(&letters_text)->required(), "word lengths A-B in letters (bins), e.g. 1-12; a single A means A-A")
         ("binary", po::bool_switch(&request.binary), "clip letters to 0/1 (spike or no spike) instead of spike counts")
         ("fit-letters", po::value(&fit_text),
          "word lengths A-B for the extrapolation to infinite word length; by default the upper half of the "
          "well-sampled lengths (see --bias-tolerance)")
-        ("bias-tolerance", po::value(&request.settings.bias_tolerance)->default_value(defaults.settings.bias_tolerance),
+        ("bias-tolerance", number_value(&request.settings.bias_tolerance),
          "sampling rule: a word length is well sampled when the extrapolations from plug-in and from jackknife "
          "estimates agree on its information within this fraction of it (or of twice its standard error, if larger)")
         ("subset-estimator", po::value(&subset_text)->default_value(subset_estimator_name(defaults.settings.subsets)),
          "entropy estimator on each subset of trials before the extrapolation to infinite data: plug-in, miller-madow or jackknife")
-        ("splits", po::value(&request.settings.splits)->default_value(defaults.settings.splits),
+        ("splits", po::value(&splits_text)->default_value(splits_text),
          "random nested splits of the trials (halves, quarters, eighths) for the extrapolation and the interval")
-        ("seed", po::value(&request.settings.seed)->default_value(defaults.settings.seed), "seed of the random splits")
-        ("threads", po::value(&request.threads)->default_value(0), "worker threads (0: one per core); results do not depend on it")
+        ("null-rotations", po::value(&rotations_text)->default_value(rotations_text),
+         "repeat the estimate on N copies of the data with each trial rotated in time by a random offset (which "
+         "removes the information but keeps each trial's statistics): reports the null mean, the null-subtracted "
+         "rate and a permutation p-value; costs N extra estimates")
+        ("seed", po::value(&seed_text)->default_value(seed_text), "seed of the random splits (a whole number)")
+        ("threads", po::value(&threads_text)->default_value(threads_text),
+         "worker threads (0: one per core); results do not depend on it")
         ("json", po::value(&json_out), "write results as JSON to this file ('-' for stdout instead of the table)")
         ("csv", po::value(&csv_out), "write tidy CSV to this file: one row per unit, bin width and word length")
         ("quiet,q", po::bool_switch(&quiet), "no table and no progress lines");
-    po::positional_options_description positional;
-    positional.add("file", 1);
     po::variables_map vm;
     if (!parse_command(argc, argv, "direct",
                        "FILE --bin-ms B[,B...] --letters A-B [--unit ID]... [--stimulus LABEL] [--binary] "
                        "[--fit-letters A-B] [--seed N] [--threads N] [--json OUT] [--csv OUT]",
-                       options, positional, vm)) {
+                       options, {{"file", "FILE", "the recording (HDF5, native layout)", &file}}, vm)) {
         return 0;
     }
     request.bin_ms = parse_number_list(bin_text, "--bin-ms");
+    request.settings.splits = static_cast<unsigned>(parse_whole_number(splits_text, "--splits", 2, 1000));
+    request.settings.seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
+    request.threads = static_cast<unsigned>(parse_whole_number(threads_text, "--threads", 0, 1024));
+    request.null_rotations = static_cast<unsigned>(parse_whole_number(rotations_text, "--null-rotations", 0, 100000));
     std::tie(request.settings.letters_min, request.settings.letters_max) = parse_int_range(letters_text, "--letters");
     if (vm.count("fit-letters")) request.settings.fit_letters = parse_int_range(fit_text, "--fit-letters");
     if (vm.count("stimulus")) request.stimulus = stimulus;

@@ -4,6 +4,7 @@
 #include <rastrum/errors.hpp>
 #include <rastrum/synthetic_files.hpp>
 
+#include <filesystem>
 #include <iostream>
 
 namespace rastrum::app {
@@ -12,42 +13,58 @@ int run_synth(int argc, char** argv) {
     std::string kind, out, rates_text = "20", modulation_text = "0.8", labels_text = "a,b,c,d";
     std::vector<std::string> means_text;
     session_shape session;
-    std::uint64_t seed = 1;
+    std::string seed_text = "1", trials_text = std::to_string(session.trials), per_condition_text = "30";
     double bin_ms = 2.0, correlation_ms = 20.0, resolution_ms = 0.1, refractory = 0.0;
-    std::size_t per_condition = 30;
+    bool overwrite = false;
     po::options_description options("Options");
     options.add_options()
-        ("kind", po::value(&kind)->required(),
-         "frozen-bins: independent bins with a frozen spike probability per bin;\n"
-         "poisson: inhomogeneous Poisson firing with a frozen smooth rate;\n"
-         "conditions: discrete stimulus conditions with Poisson spike counts")
-        ("out", po::value(&out)->required(), "the recording to write (HDF5); the exact answers go beside it as NAME.answers.json")
-        ("seed", po::value(&seed)->default_value(seed), "random seed")
-        ("trials", po::value(&session.trials)->default_value(session.trials), "trials (frozen-bins, poisson)")
-        ("duration-s", po::value(&session.duration)->default_value(session.duration), "trial duration in s")
-        ("gap-s", po::value(&session.gap)->default_value(session.gap), "time between trials in s")
-        ("background-hz", po::value(&session.background_hz)->default_value(session.background_hz),
-         "firing rate between trials (spikes outside every trial)")
+        ("out", po::value(&out)->required(),
+         "the recording to write (NAME.h5); the exact answers go beside it as NAME.answers.json")
+        ("overwrite", po::bool_switch(&overwrite), "replace NAME.h5 and NAME.answers.json if they exist")
+        ("seed", po::value(&seed_text)->default_value(seed_text), "random seed (a whole number)")
+        ("trials", po::value(&trials_text)->default_value(trials_text), "trials (frozen-bins, poisson)")
+        ("duration-s", number_value(&session.duration), "trial duration in s")
+        ("gap-s", number_value(&session.gap), "time between trials in s")
+        ("background-hz", number_value(&session.background_hz), "firing rate between trials (spikes outside every trial)")
         ("rate-hz", po::value(&rates_text)->default_value(rates_text), "mean rate of each unit, comma-separated: one unit per value")
         ("modulation", po::value(&modulation_text)->default_value(modulation_text),
-         "modulation, one for all units or one per unit: the coefficient of variation of the spike probability across bins (frozen-bins) or of the rate over time (poisson)")
-        ("bin-ms", po::value(&bin_ms)->default_value(bin_ms), "frozen-bins: width of the bins in ms")
-        ("refractory", po::value(&refractory)->default_value(refractory),
+         "one value for all units or one per unit: the coefficient of variation of the spike probability "
+         "across bins (frozen-bins) or of the rate over time (poisson)")
+        ("bin-ms", number_value(&bin_ms), "frozen-bins: width of the bins in ms")
+        ("refractory", number_value(&refractory),
          "frozen-bins: fraction by which a spike lowers the spike probability of the next bin (0..1)")
-        ("correlation-ms", po::value(&correlation_ms)->default_value(correlation_ms), "poisson: time constant of the rate's fluctuations")
-        ("resolution-ms", po::value(&resolution_ms)->default_value(resolution_ms), "poisson: steps on which the rate is held constant")
+        ("correlation-ms", number_value(&correlation_ms), "poisson: time constant of the rate's fluctuations")
+        ("resolution-ms", number_value(&resolution_ms), "poisson: steps on which the rate is held constant")
         ("labels", po::value(&labels_text)->default_value(labels_text), "conditions: stimulus labels, comma-separated")
-        ("trials-per-condition", po::value(&per_condition)->default_value(per_condition), "conditions: trials of each label")
+        ("trials-per-condition", po::value(&per_condition_text)->default_value(per_condition_text),
+         "conditions: trials of each label")
         ("means", po::value(&means_text)->composing(),
          "conditions: mean spike counts of one unit, one per label, comma-separated; repeat for each unit (default 2,4,6,9)");
-    po::positional_options_description positional;
-    positional.add("kind", 1);
     po::variables_map vm;
-    if (!parse_command(argc, argv, "synth", "frozen-bins|poisson|conditions --out FILE [options]", options, positional,
+    if (!parse_command(argc, argv, "synth", "KIND --out NAME.h5 [options]", options,
+                       {{"kind", "KIND",
+                         "frozen-bins (independent or refractory bins with a frozen spike probability), poisson "
+                         "(inhomogeneous Poisson firing with a frozen smooth rate) or conditions (discrete stimulus "
+                         "conditions with Poisson spike counts)",
+                         &kind}},
                        vm)) {
         return 0;
     }
+    if (kind != "frozen-bins" && kind != "poisson" && kind != "conditions") {
+        throw usage_error("unknown kind '" + kind + "': choose frozen-bins, poisson or conditions");
+    }
+    const std::uint64_t seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
+    session.trials = parse_whole_number(trials_text, "--trials", 1, 1000000);
+    const std::size_t per_condition = parse_whole_number(per_condition_text, "--trials-per-condition", 1, 1000000);
+    const bool h5_name = out.size() > 3 && (out.compare(out.size() - 3, 3, ".h5") == 0 ||
+                                            (out.size() > 5 && out.compare(out.size() - 5, 5, ".hdf5") == 0));
+    if (!h5_name) throw usage_error("--out " + out + ": name the recording NAME.h5 (or NAME.hdf5)");
     check_output_paths({out, answers_path_for(out)}, {});
+    for (const std::string& path: {out, answers_path_for(out)}) {
+        if (!overwrite && std::filesystem::exists(path)) {
+            throw usage_error(path + " exists; choose another name or add --overwrite");
+        }
+    }
 
     nlohmann::ordered_json parameters = {{"kind", kind}, {"seed", seed}, {"duration_s", session.duration},
                                          {"gap_s", session.gap}, {"background_hz", session.background_hz}};
@@ -69,7 +86,7 @@ int run_synth(int argc, char** argv) {
             parameters["resolution_ms"] = resolution_ms;
             synth = make_poisson(spec);
         }
-    } else if (kind == "conditions") {
+    } else {
         conditions_spec spec;
         spec.session = session;
         spec.labels = parse_text_list(labels_text, "--labels");
@@ -83,8 +100,6 @@ int run_synth(int argc, char** argv) {
         parameters["trials_per_condition"] = per_condition;
         parameters["means"] = spec.means;
         synth = make_conditions(spec);
-    } else {
-        throw usage_error("unknown kind '" + kind + "': choose frozen-bins, poisson or conditions");
     }
     write_synthetic(synth, out, parameters);
     std::cerr << "wrote " << out << " and " << answers_path_for(out) << "\n";

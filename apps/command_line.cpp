@@ -1,6 +1,7 @@
 #include "command_line.hpp"
 
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 
 #include <cmath>
 #include <filesystem>
@@ -65,24 +66,67 @@ std::vector<double> parse_number_list(const std::string& text, const std::string
 }
 
 bool parse_command(int argc, char** argv, const std::string& command, const std::string& synopsis,
-                   const po::options_description& options, const po::positional_options_description& positional,
+                   const po::options_description& options, const std::vector<positional_argument>& positional,
                    po::variables_map& vm) {
+    po::options_description help_option;
+    help_option.add_options()("help,h", "show this help and exit");
+    po::options_description hidden;
+    po::positional_options_description order;
+    for (const auto& p: positional) {
+        hidden.add_options()(p.name.c_str(), po::value(p.value));
+        order.add(p.name.c_str(), 1);
+    }
     po::options_description all;
-    all.add(options);
-    all.add_options()("help,h", "show this help and exit");
+    all.add(options).add(help_option).add(hidden);
+    // No abbreviations: "--bin-m" must not quietly mean "--bin-ms".
+    const int style = po::command_line_style::default_style & ~po::command_line_style::allow_guessing;
     try {
-        po::store(po::command_line_parser(argc, argv).options(all).positional(positional).run(), vm);
-        if (vm.count("help")) {
-            std::cout << "Usage: rastrum " << command << " " << synopsis << "\n\n" << all << "\n"
-                      << "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
-                         "4 the data cannot support the analysis. Outputs are written whole or not at all.\n";
-            return false;
-        }
+        po::store(po::command_line_parser(argc, argv).options(all).positional(order).style(style).run(), vm);
+    } catch (const po::error& e) {
+        throw usage_error(e.what());
+    }
+    if (vm.count("help")) {
+        po::options_description shown;
+        shown.add(options).add(help_option);
+        std::cout << "Usage: rastrum " << command << " " << synopsis << "\n\n";
+        for (const auto& p: positional) std::cout << "  " << p.shown_as << "  " << p.meaning << "\n";
+        std::cout << "\n" << shown << "\n"
+                  << "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
+                     "4 the data cannot support the analysis. Outputs are written whole or not at all.\n";
+        return false;
+    }
+    for (const auto& p: positional) {
+        if (!vm.count(p.name)) throw usage_error("missing " + p.shown_as + " (" + p.meaning + ")");
+    }
+    try {
         po::notify(vm);
     } catch (const po::error& e) {
         throw usage_error(e.what());
     }
     return true;
+}
+
+po::typed_value<double>* number_value(double* target) {
+    return po::value(target)->default_value(*target, format_number(*target));
+}
+
+std::uint64_t parse_whole_number(const std::string& text, const std::string& option, std::uint64_t low,
+                                 std::uint64_t high) {
+    const bool digits = !text.empty() && text.find_first_not_of("0123456789") == std::string::npos;
+    std::uint64_t value = 0;
+    bool fits = digits && text.size() <= 20;
+    if (fits) {
+        try {
+            value = std::stoull(text);
+        } catch (const std::exception&) {
+            fits = false;
+        }
+    }
+    if (!fits || value < low || value > high) {
+        throw usage_error(option + ": expected a whole number from " + std::to_string(low) + " to " +
+                          std::to_string(high) + ", got '" + text + "'");
+    }
+    return value;
 }
 
 std::string joined_command_line(int argc, char** argv) {

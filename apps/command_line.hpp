@@ -3,6 +3,7 @@
 // writing outputs so that a failure leaves nothing half-written.
 #include <boost/program_options.hpp>
 
+#include <cstdint>
 #include <optional>
 #include <string>
 #include <utility>
@@ -19,11 +20,28 @@ std::vector<double> parse_number_list(const std::string& text, const std::string
 /// "a,b,c" -> {"a", "b", "c"} (empty items rejected).
 std::vector<std::string> parse_text_list(const std::string& text, const std::string& option);
 
-/// Parses argv for one subcommand: options, a positional list, --help. Returns false when help was
-/// printed (the caller then returns 0). Boost's parse errors become usage_error.
+/// A positional argument: its option name inside Boost, what help calls it, and what it is.
+struct positional_argument {
+    std::string name;       // e.g. "file"
+    std::string shown_as;   // e.g. "FILE"
+    std::string meaning;    // e.g. "the recording (HDF5, native layout)"
+    std::string* value;
+};
+
+/// Parses argv for one subcommand: named options, required positional arguments, --help. Returns
+/// false when help was printed (the caller then returns 0). Option names must be spelled in full.
+/// Boost's parse errors become usage_error.
 bool parse_command(int argc, char** argv, const std::string& command, const std::string& synopsis,
-                   const po::options_description& options, const po::positional_options_description& positional,
+                   const po::options_description& options, const std::vector<positional_argument>& positional,
                    po::variables_map& vm);
+
+/// A double option whose help shows its default as people write it (0.03, not 0.029999...).
+po::typed_value<double>* number_value(double* target);
+
+/// Whole numbers typed as text so that "-1" cannot wrap around into a huge unsigned value.
+/// Throws usage_error naming `option` unless `text` is a whole number in [low, high].
+std::uint64_t parse_whole_number(const std::string& text, const std::string& option, std::uint64_t low,
+                                 std::uint64_t high);
 
 /// The whole command line as typed, for provenance.
 std::string joined_command_line(int argc, char** argv);

@@ -188,3 +188,36 @@ TEST(cli, demo_recording_is_made_by_the_documented_command) {
     EXPECT_EQ(fresh.trial_start, bundled.trial_start);
     EXPECT_EQ(fresh.trial_stop, bundled.trial_stop);
 }
+
+TEST(cli, nothing_the_user_had_is_overwritten_by_synth) {
+    const std::string folder = fresh_folder("cli-overwrite");
+    const std::string path = folder + "/r.h5";
+    ASSERT_EQ(run_rastrum("synth frozen-bins --trials 10 --duration-s 1 --out " + path).exit_code, 0);
+    const std::string before = read_file(path);
+    const auto again = run_rastrum("synth frozen-bins --trials 10 --duration-s 1 --seed 2 --out " + path);
+    EXPECT_EQ(again.exit_code, 2);
+    EXPECT_NE(again.err.find("--overwrite"), std::string::npos) << again.err;
+    EXPECT_EQ(read_file(path), before);
+    EXPECT_EQ(run_rastrum("synth frozen-bins --trials 10 --duration-s 1 --seed 2 --overwrite --out " + path).exit_code, 0);
+    EXPECT_NE(read_file(path), before);
+    EXPECT_EQ(run_rastrum("synth frozen-bins --out " + folder + "/r.answers.json").exit_code, 2);
+}
+
+TEST(cli, numbers_are_checked_and_options_spelled_in_full) {
+    const std::string base = "direct " + small_recording() + " --bin-ms 2 --letters 1-3 --quiet";
+    const auto negative = run_rastrum(base + " --threads -1");
+    EXPECT_EQ(negative.exit_code, 2);
+    EXPECT_NE(negative.err.find("--threads"), std::string::npos) << negative.err;
+    EXPECT_EQ(run_rastrum(base + " --seed 1.5").exit_code, 2);
+    EXPECT_EQ(run_rastrum(base + " --splits 1").exit_code, 2);
+    EXPECT_EQ(run_rastrum("direct " + small_recording() + " --bin-m 2 --letters 1-3").exit_code, 2);
+    const auto no_file = run_rastrum("direct --bin-ms 2 --letters 1-3");
+    EXPECT_EQ(no_file.exit_code, 2);
+    EXPECT_NE(no_file.err.find("missing FILE"), std::string::npos) << no_file.err;
+    const auto help = run_rastrum("direct --help");
+    EXPECT_EQ(help.out.find("--file"), std::string::npos) << "positional arguments are not options";
+    EXPECT_NE(help.out.find("(=0.03)"), std::string::npos) << help.out;
+    const auto too_fine = run_rastrum("direct " + small_recording() + " --bin-ms 0.00001 --letters 1-3 --quiet");
+    EXPECT_EQ(too_fine.exit_code, 4) << too_fine.err;
+    EXPECT_NE(too_fine.err.find("wider bin"), std::string::npos) << too_fine.err;
+}

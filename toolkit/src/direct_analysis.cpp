@@ -1,5 +1,6 @@
 #include <rastrum/direct_analysis.hpp>
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/parallel.hpp>
 #include <rastrum/random.hpp>
 
@@ -13,7 +14,7 @@ namespace rastrum {
 void check_direct_request(const direct_request& request) {
     if (request.bin_ms.empty()) throw usage_error("--bin-ms: give at least one bin width");
     for (double b: request.bin_ms) {
-        if (!(b > 0) || !std::isfinite(b)) throw usage_error("--bin-ms: bin widths must be positive, got " + std::to_string(b));
+        if (!(b > 0) || !std::isfinite(b)) throw usage_error("--bin-ms: bin widths must be positive, got " + format_number(b));
     }
     check_direct_settings(request.settings);
 }
@@ -52,10 +53,22 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
     }
     const std::vector<std::size_t> trials = select_trials(rec, request.stimulus);
     if (trials.size() < 2) {
-        throw insufficient_data("the direct method needs repeated trials; " + std::to_string(trials.size()) +
+        throw insufficient_data(rec.source + ": the direct method needs repeated trials; " + std::to_string(trials.size()) +
                                 " selected");
     }
     const seconds duration = common_duration(rec, trials);
+    // Words, their codes and their sort orders take about 24 bytes per bin and trial per task.
+    const double largest_cells =
+        static_cast<double>(trials.size()) * duration / (*std::min_element(request.bin_ms.begin(), request.bin_ms.end()) / 1000);
+    if (largest_cells > 1 << 28) {
+        throw insufficient_data(rec.source + ": " + std::to_string(trials.size()) + " trials of " + format_number(duration) +
+                                " s at the narrowest bin make " + format_number(largest_cells) +
+                                " bins to hold at once (more than 2^28, about 6 GiB); use a wider bin or fewer trials");
+    }
+    std::vector<std::string> pooled_labels;
+    if (!request.stimulus && rec.has_stimulus()) {
+        for (const auto& [label, n]: stimulus_labels(rec)) pooled_labels.push_back(label);
+    }
 
     std::vector<std::vector<std::vector<seconds>>> aligned(units.size());
     for (std::size_t u = 0; u < units.size(); ++u) aligned[u] = align_to_trials(units[u]->spike_times, rec, trials);
@@ -81,11 +94,33 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
         direct_settings settings = request.settings;
         // Each task's randomness depends only on its own unit and bin width.
         settings.seed = derive_seed(request.settings.seed, {text_hash(r.unit), bits_of(bin_ms)});
-        r.estimate = estimate_direct(letters, bin_width, settings);
+        try {
+            r.estimate = estimate_direct(letters, bin_width, settings);
+        } catch (const insufficient_data& e) {
+            throw insufficient_data(rec.source + ", unit " + r.unit + " at " + format_number(bin_ms) + " ms: " + e.what());
+        }
         const double nan = std::numeric_limits<double>::quiet_NaN();
         r.bits_per_spike = spikes > 0 ? r.estimate.info_rate / r.mean_rate_hz : nan;
         r.coding_efficiency = r.estimate.total_rate > 0 ? r.estimate.info_rate / r.estimate.total_rate : nan;
         r.warnings = r.estimate.warnings;
+        if (request.null_rotations > 0) {
+            direct_settings same_lengths = settings;
+            same_lengths.fit_letters = r.estimate.fit_letters;
+            r.null = rotation_null_distribution(letters, bin_width, same_lengths, request.null_rotations,
+                                                r.estimate.info_rate, settings.seed);
+            if (r.null.p_value > 0.05) {
+                r.warnings.push_back("not distinguishable from trials rotated out of register with the stimulus (p = " +
+                                     format_number(r.null.p_value) + ")");
+            }
+            if (std::abs(r.null.mean) > r.estimate.info_rate_se) {
+                r.warnings.push_back("rotated trials still show " + format_number(r.null.mean) +
+                                     " bits/s: the estimate carries about that much bias");
+            }
+        }
+        if (pooled_labels.size() > 1) {
+            r.warnings.push_back("trials with " + std::to_string(pooled_labels.size()) +
+                                 " different stimulus labels were pooled as one frozen stimulus; choose one with --stimulus");
+        }
         if (spikes == 0) r.warnings.push_back("no spikes in the analysed trials: bits per spike undefined");
         else if (spikes < 200) {
             r.warnings.push_back("only " + std::to_string(spikes) + " spikes in the analysed trials: estimates are rough");

@@ -304,15 +304,21 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
         if (longest_good == 0) {
             longest_good = settings.letters_min;
             const auto& first = out.by_letters.front();
-            const double scale = std::max(std::abs(first.info_bits), 2 * first.info_se_bits);
-            out.warnings.push_back(
-                "undersampled: no word length passes the sampling rule; even for " + std::to_string(longest_good) +
-                "-letter words the plug-in and jackknife bias corrections differ by " +
-                fixed(first.estimator_spread_bits, 4) + " bits per word, " +
-                fixed(100 * first.estimator_spread_bits / scale, 1) +
-                "% of the information (or of twice its standard error, if larger; tolerance " +
-                fixed(100 * settings.bias_tolerance, 1) +
-                "%): the bias left in the rate is uncertain by about that much (more trials or a wider bin would help)");
+            const std::string length = std::to_string(longest_good) + "-letter words";
+            if (std::abs(first.info_bits) < 2 * first.info_se_bits) {
+                out.warnings.push_back(
+                    "the information is indistinguishable from 0 and no word length passes the sampling rule: even for " +
+                    length + " the plug-in and jackknife bias corrections differ by " +
+                    fixed(first.estimator_spread_bits / std::max(first.info_se_bits, 1e-300), 1) +
+                    " standard errors; the rate rests on " + length + " alone");
+            } else {
+                out.warnings.push_back(
+                    "undersampled: no word length passes the sampling rule; even for " + length +
+                    " the plug-in and jackknife bias corrections differ by " +
+                    fixed(100 * first.estimator_spread_bits / std::abs(first.info_bits), 1) + "% of the information (tolerance " +
+                    fixed(100 * settings.bias_tolerance, 1) + "%), so the bias left in the rate is uncertain by about that "
+                    "much; the rate rests on " + length + " alone (more trials would help)");
+            }
         }
         out.fit_letters = {std::max(settings.letters_min, (longest_good + 1) / 2), longest_good};
     }
@@ -332,17 +338,18 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
     out.uncertainty.resampling = sd_of(out.half_info_rates) / std::sqrt(2.0);
     out.uncertainty.data_size = std::abs(mean_of(out.half_info_rates) - out.info_rate);
     out.uncertainty.word_length = all.info_se;
-    // Half the distance to the other bias correction: on synthetic data with known answers the
-    // jackknife-based rate was never further than that from the truth (notes/methods.md).
+    // The whole distance to the other bias correction: with homogeneous firing the jackknife-based
+    // rate sat up to two thirds of that distance from the exact 0 (notes/methods.md, section 4.4).
     out.uncertainty.bias_correction =
-        0.5 * std::abs(out.info_rate - fit_rates(slice(total_other, from, to), slice(noise_other, from, to),
-                                                 out.fit_letters.first, bin_width).info);
+        std::abs(out.info_rate - fit_rates(slice(total_other, from, to), slice(noise_other, from, to),
+                                           out.fit_letters.first, bin_width).info);
     const auto& u = out.uncertainty;
     out.info_rate_se = std::sqrt(u.resampling * u.resampling + u.data_size * u.data_size +
                                  u.word_length * u.word_length + u.bias_correction * u.bias_correction);
     out.info_rate_ci95 = {out.info_rate - 1.96 * out.info_rate_se, out.info_rate + 1.96 * out.info_rate_se};
 
-    if (out.fit_letters.first == out.fit_letters.second) {
+    const bool rule_failed = !out.fit_letters_from_user && !out.by_letters.front().well_sampled;
+    if (out.fit_letters.first == out.fit_letters.second && !rule_failed) {
         out.warnings.push_back("the rate comes from " + std::to_string(out.fit_letters.first) +
                                "-letter words alone, without extrapolation to infinite word length: correlations "
                                "between bins further apart are not counted");

@@ -1,5 +1,6 @@
 #include <rastrum/binning.hpp>
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/random.hpp>
 #include <rastrum/synthetic.hpp>
 
@@ -58,10 +59,13 @@ std::uint64_t poisson_draw(double mean, random_stream& rng) {
     return k;
 }
 
-double per_unit(const std::vector<double>& values, std::size_t unit, const char* what) {
-    if (values.size() == 1) return values[0];
-    if (unit >= values.size()) throw usage_error(std::string(what) + ": give one value, or one per unit");
-    return values[unit];
+/// The value for `unit` of a list that holds one value for all units or one per unit.
+double per_unit(const std::vector<double>& values, std::size_t unit, std::size_t units, const char* what) {
+    if (values.size() != 1 && values.size() != units) {
+        throw usage_error(std::string(what) + ": give one value, or one per unit (" + std::to_string(units) + "); got " +
+                          std::to_string(values.size()));
+    }
+    return values.size() == 1 ? values[0] : values[unit];
 }
 
 std::string unit_name(std::size_t u) { return "u" + std::to_string(u + 1); }
@@ -217,12 +221,12 @@ synthetic_recording make_frozen_bins(const frozen_bins_spec& spec) {
 
     for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) {
         const double mean_p = spec.rates_hz[u] * dt;
-        const double m = per_unit(spec.modulations, u, "--modulation");
+        const double m = per_unit(spec.modulations, u, spec.rates_hz.size(), "--modulation");
         if (!(m >= 0 && m <= 10)) throw usage_error("--modulation must lie in [0, 10]");
         if (!(spec.refractory >= 0 && spec.refractory <= 1)) throw usage_error("--refractory must lie in [0, 1]");
         if (!(mean_p > 0) || mean_p > 0.5) {
-            throw usage_error("--rate-hz " + std::to_string(spec.rates_hz[u]) + " with --bin-ms " +
-                              std::to_string(spec.bin_ms) + " gives a mean spike probability per bin outside (0, 0.5]");
+            throw usage_error("--rate-hz " + format_number(spec.rates_hz[u]) + " with --bin-ms " +
+                              format_number(spec.bin_ms) + " gives a mean spike probability per bin outside (0, 0.5]");
         }
         std::vector<double> p(bins);
         // Gamma-distributed gain with mean 1 and coefficient of variation m (shape 1/m^2).
@@ -292,7 +296,7 @@ synthetic_recording make_poisson(const poisson_spec& spec) {
 
     const double a = std::exp(-spec.resolution_ms / spec.correlation_ms);
     for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) {
-        const double m = per_unit(spec.modulations, u, "--modulation");
+        const double m = per_unit(spec.modulations, u, spec.rates_hz.size(), "--modulation");
         if (!(m >= 0)) throw usage_error("--modulation must not be negative");
         if (!(spec.rates_hz[u] > 0)) throw usage_error("--rate-hz must be positive");
         std::vector<double> rate(steps);
@@ -347,6 +351,8 @@ synthetic_recording make_poisson(const poisson_spec& spec) {
             char key[64];
             std::snprintf(key, sizeof key, "letter_info_bits_at_%gms", bin_ms);
             truth.values[key] = total - noise;
+            std::snprintf(key, sizeof key, "letter_info_rate_bits_per_s_at_%gms", bin_ms);
+            truth.values[key] = (total - noise) / (bin_ms / 1000);
         }
         out.truth.push_back(std::move(truth));
     }

@@ -34,7 +34,7 @@ word_codes::word_codes(const letter_matrix& letters, word_code alphabet, int max
         throw insufficient_data("words of " + std::to_string(max_letters_) + " letters over an alphabet of " +
                                 std::to_string(alphabet_) + " letters (spike counts 0 to " +
                                 std::to_string(alphabet_ - 1) + " per bin) do not fit in 64 bits; at most " +
-                                std::to_string(longest) + " letters fit (or use binary letters)");
+                                std::to_string(longest) + " letters fit" + (alphabet_ > 2 ? " (or use binary letters)" : ""));
     }
     codes_.assign(letters.letters.begin(), letters.letters.end());
 }

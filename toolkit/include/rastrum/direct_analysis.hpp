@@ -2,6 +2,7 @@
 /// The direct method over a recording: every chosen unit at every chosen bin width, in parallel,
 /// with the same numbers for any thread count.
 #include <rastrum/direct_method.hpp>
+#include <rastrum/direct_null.hpp>
 #include <rastrum/recording.hpp>
 
 #include <optional>
@@ -16,6 +17,7 @@ struct direct_request {
     std::vector<double> bin_ms;             // [ms] each > 0
     bool binary = false;                    // clip letters to 0/1
     direct_settings settings;
+    unsigned null_rotations = 0;            // rotated-trial null estimates per unit and bin width
     unsigned threads = 1;                   // 0: one per core
 };
 
@@ -29,6 +31,7 @@ struct direct_record {
     direct_estimate estimate;
     double bits_per_spike = 0;    // info rate / mean rate; NaN when there are no spikes
     double coding_efficiency = 0; // info rate / total entropy rate; NaN when the latter is 0
+    rotation_null null;           // empty when request.null_rotations == 0
     std::vector<std::string> warnings;  // the estimate's warnings and the unit's own
 };
 

@@ -64,7 +64,7 @@ struct rate_uncertainty {
     double resampling = 0;   // spread of the whole estimate over random halves of the trials, / sqrt 2
     double data_size = 0;    // how far the estimate moves from all trials to half of them
     double word_length = 0;  // standard error of the 1/L intercept
-    double bias_correction = 0;  // half the distance between the rates from plug-in and jackknife subsets
+    double bias_correction = 0;  // the distance between the rates from plug-in and jackknife subsets
 };
 
 struct direct_estimate {

@@ -66,6 +66,13 @@ json record_json(const direct_record& r) {
               {"word_length_extrapolation", e.uncertainty.word_length},
               {"bias_correction", e.uncertainty.bias_correction}}},
             {"info_rate_ci95_bits_per_s", {e.info_rate_ci95.first, e.info_rate_ci95.second}},
+            {"null", r.null.rotations == 0 ? json(nullptr)
+                                           : json{{"rotations", r.null.rotations},
+                                                  {"mean_bits_per_s", r.null.mean},
+                                                  {"sd_bits_per_s", r.null.sd},
+                                                  {"p_value", r.null.p_value}}},
+            {"info_rate_null_subtracted_bits_per_s",
+             r.null.rotations == 0 ? json(nullptr) : json(e.info_rate - r.null.mean)},
             {"bits_per_spike", number_or_null(r.bits_per_spike)},
             {"coding_efficiency", number_or_null(r.coding_efficiency)},
             {"warnings", r.warnings}};
@@ -83,6 +90,7 @@ nlohmann::ordered_json direct_parameters_json(const direct_request& q) {
             {"splits", s.splits},
             {"subset_estimator", subset_estimator_name(s.subsets)},
             {"bias_tolerance", s.bias_tolerance},
+            {"null_rotations", q.null_rotations},
             {"seed", s.seed},
             {"threads", q.threads}};
 }
@@ -160,13 +168,15 @@ std::string direct_table(const std::vector<direct_record>& records, const direct
     if (request.stimulus) s << " (trials labelled " << *request.stimulus << ")";
     s << "\n";
     if (!records.empty()) {
-        std::snprintf(line, sizeof line, "%zu trials cut to %.4g s; %s letters; rates extrapolated to infinite data and word length\n",
+        std::snprintf(line, sizeof line, "%zu trials cut to %.4g s; %s letters; rates extrapolated to infinite data, and to infinite word length\nfrom the word lengths under 'fit L' (one length: no extrapolation in word length)\n",
                       records.front().trials, records.front().trial_duration,
                       request.binary ? "binary" : "spike-count");
         s << line;
     }
-    std::snprintf(line, sizeof line, "\n%-10s %7s %8s %10s %10s %10s %21s %9s %7s %6s\n", "unit", "bin ms", "rate Hz",
-                  "total b/s", "noise b/s", "info b/s", "info 95% interval", "bits/spk", "effic.", "fit L");
+    const bool with_null = request.null_rotations > 0;
+    std::snprintf(line, sizeof line, "\n%-10s %7s %8s %10s %10s %10s %21s %9s %7s %6s%s\n", "unit", "bin ms", "rate Hz",
+                  "total b/s", "noise b/s", "info b/s", "info 95% interval", "bits/spk", "effic.", "fit L",
+                  with_null ? "  null b/s  p(null)" : "");
     s << line;
     for (const auto& r: records) {
         const auto& e = r.estimate;
@@ -175,9 +185,11 @@ std::string direct_table(const std::vector<direct_record>& records, const direct
         std::snprintf(bps, sizeof bps, std::isfinite(r.bits_per_spike) ? "%.3f" : "-", r.bits_per_spike);
         std::snprintf(eff, sizeof eff, std::isfinite(r.coding_efficiency) ? "%.3f" : "-", r.coding_efficiency);
         std::snprintf(fit, sizeof fit, "%d-%d", e.fit_letters.first, e.fit_letters.second);
-        std::snprintf(line, sizeof line, "%-10s %7g %8.2f %10.2f %10.2f %10.2f %21s %9s %7s %6s%s\n", r.unit.c_str(),
+        char null_columns[48] = "";
+        if (with_null) std::snprintf(null_columns, sizeof null_columns, " %9.2f %8.3f", r.null.mean, r.null.p_value);
+        std::snprintf(line, sizeof line, "%-10s %7g %8.2f %10.2f %10.2f %10.2f %21s %9s %7s %6s%s%s\n", r.unit.c_str(),
                       r.bin_ms, r.mean_rate_hz, e.total_rate, e.noise_rate, e.info_rate, interval, bps, eff, fit,
-                      r.warnings.empty() ? "" : "  (!)");
+                      null_columns, r.warnings.empty() ? "" : "  (!)");
         s << line;
     }
     bool any = false;

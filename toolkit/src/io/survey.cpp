@@ -56,8 +56,13 @@ std::string survey_text(const recording_overview& o, const std::string& path) {
     std::ostringstream s;
     char line[256];
     s << path << "\n";
-    std::snprintf(line, sizeof line, "trials: %zu, %.4g to %.4g s long (%.4g s in all)\n", o.trials, o.shortest_trial,
-                  o.longest_trial, o.total_trial_time);
+    if (o.shortest_trial == o.longest_trial) {
+        std::snprintf(line, sizeof line, "trials: %zu, all %.4g s long (%.4g s in all)\n", o.trials, o.shortest_trial,
+                      o.total_trial_time);
+    } else {
+        std::snprintf(line, sizeof line, "trials: %zu, %.4g to %.4g s long (%.4g s in all)\n", o.trials, o.shortest_trial,
+                      o.longest_trial, o.total_trial_time);
+    }
     s << line;
     if (o.labels.empty()) {
         s << "stimulus labels: none\n";

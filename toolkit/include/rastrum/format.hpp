@@ -1,0 +1,8 @@
+#pragma once
+/// Numbers in messages as people write them: 0.03, 2, 1e-05 (shortest form that round-trips to
+/// 6 significant digits), never 0.029999999999999999 or 2.000000.
+#include <string>
+
+namespace rastrum {
+std::string format_number(double x);
+}  // namespace rastrum

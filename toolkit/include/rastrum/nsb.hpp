@@ -1,0 +1,21 @@
+#pragma once
+/// NSB entropy estimator (Nemenman, Shafee & Bialek 2002): the posterior mean and standard
+/// deviation of the entropy under a mixture of symmetric Dirichlet priors chosen to be nearly flat in
+/// the entropy, for a histogram over an alphabet of known size.
+#include <rastrum/types.hpp>
+
+#include <vector>
+
+namespace rastrum {
+
+struct nsb_estimate {
+    double entropy_bits = 0;  // posterior mean of H
+    double sd_bits = 0;       // posterior standard deviation of H
+};
+
+/// `counts`: the non-zero (or any) counts of observed symbols; `alphabet_size` K >= number of entries
+/// (symbols never seen count as zeros). Throws usage_error when K < 1 or K is smaller than the number
+/// of non-zero counts. With no samples returns the prior mean and sd.
+nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size);
+
+}  // namespace rastrum

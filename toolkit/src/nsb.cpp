@@ -1,0 +1,352 @@
+// NSB estimator: fixed-beta Dirichlet pieces (nsb_detail) and the integral over beta.
+// Derivations are in notes/methods-nsb.md.
+#include "nsb_moments.hpp"
+
+#include <rastrum/errors.hpp>
+#include <rastrum/nsb.hpp>
+
+#include <boost/math/quadrature/gauss.hpp>
+#include <boost/math/quadrature/gauss_kronrod.hpp>
+#include <boost/math/special_functions/digamma.hpp>
+#include <boost/math/special_functions/trigamma.hpp>
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <map>
+#include <string>
+
+namespace rastrum {
+namespace nsb_detail {
+
+namespace {
+using boost::math::digamma;
+using boost::math::trigamma;
+
+// Beyond these arguments the asymptotic series are exact to double precision, and the direct
+// formulas would lose the digits that the series keep.
+constexpr double stirling_from = 10;
+constexpr double series_from = 1e3;
+constexpr double chi_series_from = 100;
+
+/// lnGamma(x) - [(x - 1/2) ln x - x + ln(2 pi)/2] for x >= 10 (Stirling series, Bernoulli numbers).
+double stirling_remainder(double x) {
+    const double r = 1 / x, r2 = r * r;
+    return r * (1.0 / 12 + r2 * (-1.0 / 360 + r2 * (1.0 / 1260 + r2 * (-1.0 / 1680 + r2 * (1.0 / 1188 + r2 * (-691.0 / 360360))))));
+}
+
+/// chi(a) = a (a + 1) psi1(a + 1) - a, the per-symbol term of the fixed-beta variance. It rises
+/// from 0 to 1/2; the series avoids subtracting two numbers near a.
+double chi(double a) {
+    if (a < chi_series_from) return a * ((a + 1) * trigamma(a + 1) - 1);
+    const double r = 1 / a;
+    return 0.5 + r * (-1.0 / 3 + r * (1.0 / 6 + r * (-1.0 / 30 + r * (-1.0 / 30 + r * (1.0 / 42 + r * (1.0 / 42 + r * (-1.0 / 30 + r * (-1.0 / 30))))))));
+}
+}  // namespace
+
+grouped_counts group_counts(const std::vector<count>& counts, double alphabet) {
+    if (!std::isfinite(alphabet) || alphabet < 1) {
+        throw usage_error("NSB entropy: the alphabet size must be a finite number >= 1, got " + std::to_string(alphabet));
+    }
+    std::map<count, double> multiplicity;
+    grouped_counts g;
+    g.alphabet = alphabet;
+    for (count n: counts) {
+        if (n == 0) continue;
+        multiplicity[n] += 1;
+        g.seen += 1;
+        g.samples += static_cast<double>(n);
+    }
+    if (g.seen > alphabet) {
+        throw usage_error("NSB entropy: " + std::to_string(static_cast<count>(g.seen)) +
+                          " distinct symbols were observed but the alphabet size is " + std::to_string(alphabet));
+    }
+    if (alphabet > g.seen) g.groups.push_back({0, alphabet - g.seen});
+    for (const auto& [n, m]: multiplicity) g.groups.push_back({static_cast<double>(n), m});
+    return g;
+}
+
+double log_rising_excess(double z, double m) {
+    if (m == 0) return 0;
+    if (z < stirling_from) return std::lgamma(z + m) - std::lgamma(z) - m * std::log(z);
+    // Stirling for both gammas; the (x - 1/2) ln x terms are combined through log1p so nothing of
+    // size z ln z is ever formed.
+    return (z + m - 0.5) * std::log1p(m / z) - m + stirling_remainder(z + m) - stirling_remainder(z);
+}
+
+double log_evidence(const grouped_counts& g, double beta) {
+    // lnGamma(K b) - lnGamma(N + K b) + sum_i [lnGamma(n_i + b) - lnGamma(b)]; the m ln z parts of
+    // the rising factorials sum to -N ln K exactly, leaving terms that stay small as beta grows.
+    double sum = -g.samples * std::log(g.alphabet) - log_rising_excess(g.alphabet * beta, g.samples);
+    for (const auto& grp: g.groups) {
+        if (grp.value > 0) sum += grp.multiplicity * log_rising_excess(beta, grp.value);
+    }
+    return sum;
+}
+
+entropy_moments dirichlet_entropy_moments(const grouped_counts& g, double beta) {
+    // With a_i = n_i + beta, A = sum a_i and d_i = psi(a_i + 1):
+    //   E[H]   = psi(A + 1) - sum (a_i/A) d_i
+    //   Var[H] = [sum a_i (d_i - dbar)^2 + sum chi(a_i) - chi(A)] / (A (A + 1)),  dbar = sum (a_i/A) d_i,
+    // the centred form of E[H^2] - E[H]^2 (derivation in notes/methods-nsb.md).
+    const double total = g.samples + g.alphabet * beta;
+    double dbar = 0;
+    for (const auto& grp: g.groups) {
+        const double a = grp.value + beta;
+        dbar += grp.multiplicity * (a / total) * digamma(a + 1);
+    }
+    double spread = 0, chi_sum = -chi(total);
+    for (const auto& grp: g.groups) {
+        const double a = grp.value + beta;
+        const double d = digamma(a + 1) - dbar;
+        spread += grp.multiplicity * a * d * d;
+        chi_sum += grp.multiplicity * chi(a);
+    }
+    entropy_moments m;
+    m.mean = digamma(total + 1) - dbar;
+    m.variance = std::max(0.0, (spread + chi_sum) / (total * (total + 1)));
+    return m;
+}
+
+entropy_moments dirichlet_entropy_moments(const std::vector<count>& counts, double alphabet, double beta) {
+    return dirichlet_entropy_moments(group_counts(counts, alphabet), beta);
+}
+
+double log_evidence(const std::vector<count>& counts, double alphabet, double beta) {
+    return log_evidence(group_counts(counts, alphabet), beta);
+}
+
+double prior_mean_entropy(double alphabet, double beta) {
+    return digamma(alphabet * beta + 1) - digamma(beta + 1);
+}
+
+double prior_mean_entropy_gap(double alphabet, double beta) {
+    if (beta < series_from) return std::log(alphabet) - prior_mean_entropy(alphabet, beta);
+    // psi(z + 1) = ln z + 1/(2z) - 1/(12 z^2) + 1/(120 z^4) - 1/(252 z^6), for z = K b and z = b.
+    const double r = 1 / beta, k = 1 / alphabet, k2 = k * k;
+    return r * ((1 - k) / 2 + r * (-(1 - k2) / 12 + r * r * ((1 - k2 * k2) / 120 - r * r * (1 - k2 * k2 * k2) / 252)));
+}
+
+double prior_mean_entropy_slope(double alphabet, double beta) {
+    if (beta < series_from) return alphabet * trigamma(alphabet * beta + 1) - trigamma(beta + 1);
+    // psi1(z + 1) = 1/z - 1/(2 z^2) + 1/(6 z^3) - 1/(30 z^5) + 1/(42 z^7) - 1/(30 z^9): the 1/b terms
+    // cancel exactly, which the direct difference cannot do.
+    const double r = 1 / beta, k = 1 / alphabet, k2 = k * k, k4 = k2 * k2;
+    const double r2 = r * r;
+    return r2 * ((1 - k) / 2 + r * (-(1 - k2) / 6 + r2 * ((1 - k4) / 30 + r2 * (-(1 - k4 * k2) / 42 + r2 * (1 - k4 * k4) / 30))));
+}
+
+}  // namespace nsb_detail
+
+namespace {
+using namespace nsb_detail;
+
+// The integration variable is x = ln beta. The ends put a prior mass below 1e-12 nats of xi outside
+// (xi ~ (K-1) (pi^2/6) beta for small beta) and reach far past the point where the evidence
+// settles to its beta -> infinity limit (beta >> N^2); what is left beyond either end is added
+// as a tail term in xi, where the integrand is bounded.
+constexpr double lowest_beta_times_k = 1e-12;
+constexpr double highest_beta_per_n2 = 1e6;
+constexpr double coarse_step = 0.5;     // in ln beta, for locating the posterior
+constexpr double negligible_log = 60;   // posterior weight below e^-60 of the peak is dropped
+constexpr double relative_tolerance = 1e-10;
+constexpr std::size_t max_intervals = 20000;
+
+/// The integrands at one beta: w = posterior density in ln beta relative to the peak, times
+/// (1, E[H|beta], Var[H|beta], (E[H|beta] - reference)^2).
+using values = std::array<double, 4>;
+
+class posterior {
+public:
+    explicit posterior(const grouped_counts& g): g_(g) {}
+
+    /// ln of the unnormalised posterior density in x = ln beta: P(n|beta) xi'(beta) beta.
+    double log_density(double x) const {
+        const double beta = std::exp(x);
+        return log_evidence(g_, beta) + std::log(prior_mean_entropy_slope(g_.alphabet, beta)) + x;
+    }
+
+    values at(double x) const {
+        const double w = std::exp(log_density(x) - log_peak);
+        return weighted(w, std::exp(x));
+    }
+
+    /// The same integrands per unit xi (the Jacobian dropped), for the tails.
+    values per_xi(double beta) const {
+        return weighted(std::exp(log_evidence(g_, beta) - log_peak), beta);
+    }
+
+    const grouped_counts& counts() const { return g_; }
+    double log_peak = 0;
+    double reference = 0;
+
+private:
+    values weighted(double w, double beta) const {
+        if (!(w > 1e-300)) return {0, 0, 0, 0};
+        const entropy_moments m = dirichlet_entropy_moments(g_, beta);
+        const double d = m.mean - reference;
+        return {w, w * m.mean, w * m.variance, w * d * d};
+    }
+    const grouped_counts& g_;
+};
+
+/// Golden-section search for the maximum of the log density on [a, b].
+double refine_peak(const posterior& p, double a, double b) {
+    const double ratio = 0.5 * (std::sqrt(5.0) - 1);
+    double c = b - ratio * (b - a), d = a + ratio * (b - a);
+    double fc = p.log_density(c), fd = p.log_density(d);
+    for (int i = 0; i < 80 && b - a > 1e-12 * std::max(1.0, std::abs(a)); ++i) {
+        if (fc > fd) {
+            b = d, d = c, fd = fc;
+            c = b - ratio * (b - a), fc = p.log_density(c);
+        } else {
+            a = c, c = d, fc = fd;
+            d = a + ratio * (b - a), fd = p.log_density(d);
+        }
+    }
+    return 0.5 * (a + b);
+}
+
+/// Width of a peak in x from the curvature of the log density, so that breakpoints resolve peaks
+/// far narrower than the coarse grid. Broad or flat peaks get width 1.
+double peak_width(const posterior& p, double x) {
+    double width = 1;
+    for (double h: {1e-3, 0.0}) {
+        const double step = h > 0 ? h : std::min(0.1 * width, 1e-3);
+        const double curvature = (p.log_density(x + step) - 2 * p.log_density(x) + p.log_density(x - step)) / (step * step);
+        width = curvature < -1e-6 ? std::min(1.0, std::max(1e-10, 1 / std::sqrt(-curvature))) : 1.0;
+    }
+    return width;
+}
+
+struct interval {
+    double a, b;
+    values integral, error;
+};
+
+/// Gauss-Kronrod 15 with the embedded Gauss 7 rule as the error estimate, for all four integrands.
+interval gauss_kronrod(const posterior& p, double a, double b) {
+    using kronrod = boost::math::quadrature::gauss_kronrod<double, 15>;
+    using gauss = boost::math::quadrature::gauss<double, 7>;
+    const double half = 0.5 * (b - a), mid = 0.5 * (a + b);
+    values k{}, g{};
+    for (std::size_t i = 0; i < kronrod::abscissa().size(); ++i) {
+        const double t = kronrod::abscissa()[i];
+        values f = p.at(mid + half * t);
+        if (i > 0) {
+            const values f2 = p.at(mid - half * t);
+            for (std::size_t c = 0; c < 4; ++c) f[c] += f2[c];
+        }
+        for (std::size_t c = 0; c < 4; ++c) {
+            k[c] += kronrod::weights()[i] * f[c];
+            if (i % 2 == 0) g[c] += gauss::weights()[i / 2] * f[c];
+        }
+    }
+    interval out{a, b, {}, {}};
+    for (std::size_t c = 0; c < 4; ++c) {
+        out.integral[c] = half * k[c];
+        out.error[c] = std::abs(half * (k[c] - g[c]));
+    }
+    return out;
+}
+
+/// Globally adaptive: bisect the interval whose error most exceeds its share of the tolerance until
+/// the mass, the mean and the variance are each resolved to `relative_tolerance`.
+values integrate(const posterior& p, const std::vector<double>& breaks) {
+    std::vector<interval> parts;
+    for (std::size_t i = 0; i + 1 < breaks.size(); ++i) parts.push_back(gauss_kronrod(p, breaks[i], breaks[i + 1]));
+    while (true) {
+        values total{}, error{};
+        for (const auto& part: parts) {
+            for (std::size_t c = 0; c < 4; ++c) total[c] += part.integral[c], error[c] += part.error[c];
+        }
+        const double mass = std::max(total[0], 1e-300);
+        const double mean = total[1] / mass, variance = (total[2] + total[3]) / mass;
+        // Targets in the units of each integral: mass, mass x entropy, mass x variance.
+        const std::array<double, 3> target{relative_tolerance * mass,
+                                           relative_tolerance * mass * std::max(std::abs(mean), 1e-3),
+                                           relative_tolerance * mass * std::max(variance, 1e-24)};
+        auto score = [&](const interval& part) {
+            return std::max({part.error[0] / target[0], part.error[1] / target[1],
+                             (part.error[2] + part.error[3]) / target[2]});
+        };
+        const bool done = error[0] <= target[0] && error[1] <= target[1] && error[2] + error[3] <= target[2];
+        if (done || parts.size() >= max_intervals) return total;
+        const auto worst = std::max_element(parts.begin(), parts.end(),
+                                            [&](const interval& u, const interval& v) { return score(u) < score(v); });
+        const double a = worst->a, b = worst->b, m = 0.5 * (a + b);
+        *worst = gauss_kronrod(p, a, m);
+        parts.push_back(gauss_kronrod(p, m, b));
+    }
+}
+}  // namespace
+
+nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size) {
+    const grouped_counts g = group_counts(counts, alphabet_size);
+    if (g.alphabet == 1) return {};  // one symbol: H = 0 under every prior
+    posterior p(g);
+
+    const double x_low = std::log(lowest_beta_times_k / g.alphabet);
+    const double x_high = std::log(highest_beta_per_n2) + 2 * std::log1p(g.samples);
+    const auto steps = static_cast<std::size_t>(std::ceil((x_high - x_low) / coarse_step));
+    std::vector<double> grid(steps + 1), log_density(steps + 1);
+    for (std::size_t i = 0; i <= steps; ++i) {
+        grid[i] = x_low + (x_high - x_low) * static_cast<double>(i) / static_cast<double>(steps);
+        log_density[i] = p.log_density(grid[i]);
+    }
+    const double coarse_max = *std::max_element(log_density.begin(), log_density.end());
+
+    // Refine every local maximum of the coarse grid that could matter (usually there is one).
+    std::vector<double> peaks;
+    double log_peak = coarse_max;
+    for (std::size_t i = 0; i <= steps; ++i) {
+        const bool left_ok = i == 0 || log_density[i] >= log_density[i - 1];
+        const bool right_ok = i == steps || log_density[i] >= log_density[i + 1];
+        if (!left_ok || !right_ok || log_density[i] < coarse_max - 40) continue;
+        const double x = refine_peak(p, grid[i == 0 ? 0 : i - 1], grid[i == steps ? steps : i + 1]);
+        peaks.push_back(x);
+        log_peak = std::max(log_peak, p.log_density(x));
+    }
+    p.log_peak = log_peak;
+    const double best = *std::max_element(peaks.begin(), peaks.end(),
+                                          [&](double u, double v) { return p.log_density(u) < p.log_density(v); });
+    p.reference = dirichlet_entropy_moments(g, std::exp(best)).mean;
+
+    // Integrate only where the coarse grid saw weight, with breakpoints resolving each peak.
+    std::size_t first = 0, last = steps;
+    while (first < steps && log_density[first] < log_peak - negligible_log) ++first;
+    while (last > first && log_density[last] < log_peak - negligible_log) --last;
+    first = first > 0 ? first - 1 : 0;
+    last = std::min(last + 1, steps);
+    std::vector<double> breaks(grid.begin() + static_cast<std::ptrdiff_t>(first),
+                               grid.begin() + static_cast<std::ptrdiff_t>(last) + 1);
+    for (double x: peaks) {
+        const double width = peak_width(p, x);
+        for (double k: {0.0, 0.5, 1.0, 2.0, 3.0, 4.0, 6.0, 8.0, 12.0, 16.0}) {
+            for (double s: {-1.0, 1.0}) {
+                const double b = x + s * k * width;
+                if (b > grid[first] && b < grid[last]) breaks.push_back(b);
+            }
+        }
+    }
+    std::sort(breaks.begin(), breaks.end());
+    breaks.erase(std::unique(breaks.begin(), breaks.end(), [](double u, double v) { return v - u < 1e-13; }),
+                 breaks.end());
+    values total = integrate(p, breaks);
+
+    // Beyond the ends the posterior per unit xi is flat to first order: add it times the xi left over.
+    auto add_tail = [&](double beta, double xi_left) {
+        const values f = p.per_xi(beta);
+        for (std::size_t c = 0; c < 4; ++c) total[c] += xi_left * f[c];
+    };
+    if (first == 0) add_tail(std::exp(x_low), prior_mean_entropy(g.alphabet, std::exp(x_low)));
+    if (last == steps) add_tail(std::exp(x_high), prior_mean_entropy_gap(g.alphabet, std::exp(x_high)));
+
+    const double mean = total[1] / total[0];
+    const double shift = mean - p.reference;
+    const double variance = std::max(0.0, (total[2] + total[3]) / total[0] - shift * shift);
+    const double ln2 = std::log(2.0);
+    return {mean / ln2, std::sqrt(variance) / ln2};
+}
+
+}  // namespace rastrum
