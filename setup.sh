@@ -46,7 +46,7 @@ if [ "$mode" = demo ]; then
   recording=demo-recordings/flicker-tectum.h5
   ./build/rastrum survey "$recording" --json out/demo/survey.json
   echo
-  ./build/rastrum direct "$recording" --bin-ms 2,4 --letters 1-8 \
+  ./build/rastrum direct "$recording" --bin-ms 2,4 --letters 1-8 --null-rotations 19 \
     --json out/demo/direct.json --csv out/demo/direct.csv
 else
   ctest --test-dir build --output-on-failure -j"$jobs"

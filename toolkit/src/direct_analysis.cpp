@@ -113,8 +113,9 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
                                      format_number(r.null.p_value) + ")");
             }
             if (std::abs(r.null.mean) > r.estimate.info_rate_se) {
-                r.warnings.push_back("rotated trials still show " + format_number(r.null.mean) +
-                                     " bits/s: the estimate carries about that much bias");
+                r.warnings.push_back("trials rotated out of register with the stimulus, which carry no information, "
+                                     "still show " + format_number(r.null.mean) +
+                                     " bits/s: a bias of about that size is possible here");
             }
         }
         if (pooled_labels.size() > 1) {

@@ -210,13 +210,15 @@ double refine_peak(const posterior& p, double a, double b) {
 /// Width of a peak in x from the curvature of the log density, so that breakpoints resolve peaks
 /// far narrower than the coarse grid. Broad or flat peaks get width 1.
 double peak_width(const posterior& p, double x) {
-    double width = 1;
-    for (double h: {1e-3, 0.0}) {
-        const double step = h > 0 ? h : std::min(0.1 * width, 1e-3);
-        const double curvature = (p.log_density(x + step) - 2 * p.log_density(x) + p.log_density(x - step)) / (step * step);
-        width = curvature < -1e-6 ? std::min(1.0, std::max(1e-10, 1 / std::sqrt(-curvature))) : 1.0;
-    }
-    return width;
+    auto width_from = [&](double step) {
+        const double curvature =
+            (p.log_density(x + step) - 2 * p.log_density(x) + p.log_density(x - step)) / (step * step);
+        return curvature < -1e-6 ? std::min(1.0, std::max(1e-10, 1 / std::sqrt(-curvature))) : 1.0;
+    };
+    // A second pass with a step matched to the first estimate keeps narrow peaks from being
+    // smeared by a step wider than themselves.
+    const double first = width_from(1e-3);
+    return width_from(std::min(0.1 * first, 1e-3));
 }
 
 struct interval {
