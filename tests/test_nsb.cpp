@@ -19,34 +19,11 @@ using namespace rastrum::nsb_detail;
 
 namespace {
 const double ln2 = std::log(2.0);
-const double two_pi = 6.283185307179586;
-
-double gaussian(random_stream& rng) {
-    const double u = 1.0 - rng.uniform();
-    return std::sqrt(-2.0 * std::log(u)) * std::cos(two_pi * rng.uniform());  // Box-Muller
-}
-
-/// ln of a Gamma(shape, 1) draw: Marsaglia & Tsang 2000 (ACM TOMS 26:363), with their boost
-/// G(a) = G(a + 1) U^(1/a) for a < 1 taken in logs so tiny shapes do not underflow.
-double log_gamma_draw(double shape, random_stream& rng) {
-    if (shape < 1) return log_gamma_draw(shape + 1, rng) + std::log(1.0 - rng.uniform()) / shape;
-    const double d = shape - 1.0 / 3.0, c = 1.0 / std::sqrt(9 * d);
-    while (true) {
-        double x, v;
-        do {
-            x = gaussian(rng);
-            v = 1 + c * x;
-        } while (v <= 0);
-        v = v * v * v;
-        if (std::log(1.0 - rng.uniform()) < 0.5 * x * x + d - d * v + d * std::log(v)) return std::log(d * v);
-    }
-}
-
 /// Entropy (nats) of one draw p ~ Dirichlet(alpha), by normalising independent gammas
 /// (e.g. Devroye 1986, Non-Uniform Random Variate Generation, ch. XI; from memory).
 double dirichlet_entropy_draw(const std::vector<double>& alpha, random_stream& rng) {
     std::vector<double> l(alpha.size());
-    for (std::size_t i = 0; i < alpha.size(); ++i) l[i] = log_gamma_draw(alpha[i], rng);
+    for (std::size_t i = 0; i < alpha.size(); ++i) l[i] = log_gamma_variate(alpha[i], rng);
     const double top = *std::max_element(l.begin(), l.end());
     double z = 0;
     for (double v: l) z += std::exp(v - top);
@@ -76,7 +53,10 @@ nsb_estimate reference_nsb(const std::vector<count>& counts, double k, double st
         const double x = lo + h * static_cast<double>(i), beta = std::exp(x);
         log_w[i] = log_evidence(g, beta) + std::log(prior_mean_entropy_slope(k, beta)) + x;
     }
-    const double top = *std::max_element(log_w.begin(), log_w.end());
+    const auto peak = std::max_element(log_w.begin(), log_w.end());
+    const double top = *peak;
+    // Second moments about the entropy at the peak, so a tiny spread is not lost to cancellation.
+    const double shift = dirichlet_entropy_moments(g, std::exp(lo + h * static_cast<double>(peak - log_w.begin()))).mean;
     double z = 0, s1 = 0, s2 = 0;
     for (std::size_t i = 0; i <= n; ++i) {
         const double simpson = (i == 0 || i == n) ? 1 : (i % 2 ? 4 : 2);
@@ -85,10 +65,10 @@ nsb_estimate reference_nsb(const std::vector<count>& counts, double k, double st
         const auto m = dirichlet_entropy_moments(g, std::exp(lo + h * static_cast<double>(i)));
         z += w;
         s1 += w * m.mean;
-        s2 += w * (m.variance + m.mean * m.mean);
+        s2 += w * (m.variance + (m.mean - shift) * (m.mean - shift));
     }
     const double mean = s1 / z;
-    return {mean / ln2, std::sqrt(s2 / z - mean * mean) / ln2};
+    return {mean / ln2, std::sqrt(s2 / z - (mean - shift) * (mean - shift)) / ln2};
 }
 }  // namespace
 
@@ -134,9 +114,8 @@ TEST(nsb_moments, match_monte_carlo_dirichlet_draws) {
 }
 
 // With no data the posterior mean at fixed beta is the prior mean xi(beta) = psi(K beta + 1) -
-// psi(beta + 1) (Nemenman, Shafee & Bialek 2002, eq. for xi(beta); from memory), and the moments
-// of 2^40 symbols grouped as one zero count agree with Monte Carlo above in small alphabets only,
-// so here the large-K mean is checked against the same closed form.
+// psi(beta + 1) (Nemenman, Shafee & Bialek 2002, Sec. 3; from memory). Monte Carlo above reaches
+// only small alphabets; this carries the grouped formula to K = 2^40 (all symbols one zero group).
 TEST(nsb_moments, prior_mean_is_xi) {
     for (double k: {2.0, 1000.0, std::ldexp(1.0, 40)}) {
         for (double beta: {1e-9, 1e-3, 1.0, 30.0, 1e4}) {
@@ -156,7 +135,7 @@ TEST(nsb_moments, xi_slope_is_derivative_of_xi) {
             EXPECT_NEAR(prior_mean_entropy_slope(k, beta), numeric, 1e-6 * numeric) << "K=" << k << " beta=" << beta;
         }
         EXPECT_LT(prior_mean_entropy(k, 1e-15), 1e-14 * k);
-        EXPECT_NEAR(prior_mean_entropy_gap(k, 1e12), 0.5e-12, 1e-13);
+        EXPECT_NEAR(prior_mean_entropy_gap(k, 1e12), 0.5e-12 * (1 - 1 / k), 1e-24);  // (1 - 1/K)/(2 beta) + O(beta^-2)
     }
 }
 
@@ -202,16 +181,28 @@ TEST(nsb_moments, evidence_matches_sequential_predictive_product) {
 
 // --- The integral over beta ------------------------------------------------------------------------
 
-// The adaptive integration against brute force on a fixed grid 10-20 times finer than any peak
-// here: the accuracy target of 1e-6 bits, relative. Cases: N = 0, N = 1, one symbol seen many
-// times, a narrow posterior (K = 2, N = 2000), a posterior pressed against beta -> infinity
-// (uniform counts at N = 1e4 K), a sparse sample from K = 2^40.
+namespace {
+/// n draws of floor(M^U) - 1, U uniform: p_j proportional to ln((j + 1)/j), a heavy (1/j) tail.
+std::vector<count> log_uniform_sample(std::size_t m, std::size_t n, random_stream& rng) {
+    std::vector<count> h(m, 0);
+    const double log_m = std::log(static_cast<double>(m));
+    for (std::size_t i = 0; i < n; ++i) ++h[static_cast<std::size_t>(std::floor(std::exp(rng.uniform() * log_m))) - 1];
+    return h;
+}
+}  // namespace
+
+// The adaptive integration against brute force on a fixed grid (step 1e-3 in ln beta, at least 7
+// points per posterior sd here): the accuracy target of 1e-6 bits, relative. Cases: N = 0, N = 1,
+// one symbol seen many times, a narrow posterior (K = 2, N = 2000), a posterior pressed against
+// beta -> infinity (flat counts, N = 1e4 K), a sparse sample from K = 2^40, and 1e5 samples over
+// K = 2^40 whose posterior (sd 0.008 in ln beta) falls between the estimator's coarse grid points.
 TEST(nsb_integral, matches_brute_force_integration) {
     random_stream rng(2002);
-    std::vector<count> skewed(2, 0), sparse;
+    std::vector<count> skewed(2, 0);
     for (int i = 0; i < 2000; ++i) ++skewed[rng.uniform() < 0.2 ? 0 : 1];
-    std::vector<count> zipf(3000, 0);
-    for (int i = 0; i < 400; ++i) ++zipf[static_cast<std::size_t>(std::floor(std::exp(rng.uniform() * std::log(3000.0))) - 1)];
+    const auto zipf = log_uniform_sample(3000, 400, rng);
+    random_stream narrow_rng(5);
+    const auto narrow = log_uniform_sample(200000, 100000, narrow_rng);
     struct table {
         std::vector<count> counts;
         double k;
@@ -225,6 +216,7 @@ TEST(nsb_integral, matches_brute_force_integration) {
         {std::vector<count>(10, 10000), 10, "flat counts, N = 1e5"},
         {uniform_sample(100, 50, rng), 100, "uniform, N = K/2"},
         {zipf, std::ldexp(1.0, 40), "400 samples, K = 2^40"},
+        {narrow, std::ldexp(1.0, 40), "1e5 samples, K = 2^40"},
     };
     for (const auto& t: tables) {
         const auto got = nsb_entropy(t.counts, t.k);
@@ -237,17 +229,22 @@ TEST(nsb_integral, matches_brute_force_integration) {
 // --- Properties of the estimator ----------------------------------------------------------------
 
 // A uniform distribution over K symbols: with N = 10 K samples the estimate is within 1% of
-// log2 K and within 2 posterior sd of it (consistency, Nemenman, Shafee & Bialek 2002, Sec. 4 and
-// Fig. 2; from memory).
+// log2 K for every sample and within 2 posterior sd of it for at least 90% of 20 samples
+// (consistency and honest error bars, Nemenman, Shafee & Bialek 2002, Sec. 4 and Fig. 2; from
+// memory). Not for all: log2 K is the largest entropy possible, so the posterior lies below it
+// and the truth sits near 1.3 sd above the mean on average.
 TEST(nsb_estimator, converges_on_uniform_distribution) {
-    random_stream rng(1995);
     for (std::size_t k: {100, 1000}) {
-        for (int seed = 0; seed < 3; ++seed) {
+        random_stream rng(derive_seed(1995, {k}));
+        const double truth = std::log2(static_cast<double>(k));
+        int covered = 0;
+        const int seeds = 20;
+        for (int s = 0; s < seeds; ++s) {
             const auto e = nsb_entropy(uniform_sample(k, 10 * k, rng), static_cast<double>(k));
-            const double truth = std::log2(static_cast<double>(k));
             EXPECT_NEAR(e.entropy_bits, truth, 0.01 * truth) << "K=" << k;
-            EXPECT_LE(std::abs(e.entropy_bits - truth), 2 * e.sd_bits) << "K=" << k;
+            covered += std::abs(e.entropy_bits - truth) <= 2 * e.sd_bits;
         }
+        EXPECT_GE(covered, 18) << "K=" << k;
     }
 }
 
@@ -307,5 +304,6 @@ TEST(nsb_estimator, invalid_alphabet_sizes_throw) {
     EXPECT_THROW(nsb_entropy({1, 2, 3}, 2), usage_error);
     EXPECT_THROW(nsb_entropy({1}, std::numeric_limits<double>::quiet_NaN()), usage_error);
     EXPECT_THROW(nsb_entropy({1}, std::numeric_limits<double>::infinity()), usage_error);
+    EXPECT_THROW(nsb_entropy({1}, 1e101), usage_error);  // documented cap: K beta must stay finite
     EXPECT_NO_THROW(nsb_entropy({1, 0, 0, 2}, 2));  // zeros beyond K are symbols never seen
 }

@@ -50,7 +50,7 @@ def main():
             truths = []
             for seed in SEEDS:
                 path = f"{folder}/r.h5"
-                run(["synth", "frozen-bins", "--out", path, "--duration-s", "8", "--bin-ms", str(bin_ms),
+                run(["synth", "frozen-bins", "--overwrite", "--out", path, "--duration-s", "8", "--bin-ms", str(bin_ms),
                      "--seed", str(seed)] + synth.split())
                 truth = json.load(open(f"{folder}/r.answers.json"))["units"][0]["info_rate_bits_per_s"]
                 truths.append(truth)
@@ -85,7 +85,7 @@ def subset_estimators():
     with tempfile.TemporaryDirectory() as folder:
         for label, synth, bin_ms, _ in SCENARIOS[:4]:
             path = f"{folder}/r.h5"
-            run(["synth", "frozen-bins", "--out", path, "--duration-s", "8", "--bin-ms", str(bin_ms), "--seed", "1"]
+            run(["synth", "frozen-bins", "--overwrite", "--out", path, "--duration-s", "8", "--bin-ms", str(bin_ms), "--seed", "1"]
                 + synth.split())
             truth = json.load(open(f"{folder}/r.answers.json"))["units"][0]["by_letters"]["info_bits"]
             r = json.loads(run(["direct", path, "--bin-ms", str(bin_ms), "--letters", "1-8", "--json", "-",

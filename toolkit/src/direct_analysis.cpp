@@ -114,7 +114,7 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
             }
             if (std::abs(r.null.mean) > r.estimate.info_rate_se) {
                 r.warnings.push_back("trials rotated out of register with the stimulus, which carry no information, "
-                                     "still show " + format_number(r.null.mean) +
+                                     "still show " + format_fixed(r.null.mean, 2) +
                                      " bits/s: a bias of about that size is possible here");
             }
         }

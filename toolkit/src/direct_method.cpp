@@ -1,5 +1,6 @@
 #include <rastrum/direct_method.hpp>
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/extrapolation.hpp>
 #include <rastrum/trial_partition.hpp>
 #include <rastrum/word_counting.hpp>
@@ -9,7 +10,6 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
-#include <sstream>
 
 namespace rastrum {
 
@@ -199,13 +199,6 @@ std::vector<double> slice(const std::vector<double>& v, int from, int to) {
     return std::vector<double>(v.begin() + from, v.begin() + to + 1);
 }
 
-std::string fixed(double x, int digits) {
-    std::ostringstream s;
-    s.setf(std::ios::fixed);
-    s.precision(digits);
-    s << x;
-    return s.str();
-}
 
 }  // namespace
 
@@ -309,14 +302,14 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
                 out.warnings.push_back(
                     "the information is indistinguishable from 0 and no word length passes the sampling rule: even for " +
                     length + " the plug-in and jackknife bias corrections differ by " +
-                    fixed(first.estimator_spread_bits / std::max(first.info_se_bits, 1e-300), 1) +
+                    format_fixed(first.estimator_spread_bits / std::max(first.info_se_bits, 1e-300), 1) +
                     " standard errors; the rate rests on " + length + " alone");
             } else {
                 out.warnings.push_back(
                     "undersampled: no word length passes the sampling rule; even for " + length +
                     " the plug-in and jackknife bias corrections differ by " +
-                    fixed(100 * first.estimator_spread_bits / std::abs(first.info_bits), 1) + "% of the information (tolerance " +
-                    fixed(100 * settings.bias_tolerance, 1) + "%), so the bias left in the rate is uncertain by about that "
+                    format_fixed(100 * first.estimator_spread_bits / std::abs(first.info_bits), 1) + "% of the information (tolerance " +
+                    format_fixed(100 * settings.bias_tolerance, 1) + "%), so the bias left in the rate is uncertain by about that "
                     "much; the rate rests on " + length + " alone (more trials would help)");
             }
         }

@@ -10,4 +10,10 @@ std::string format_number(double x) {
     return text;
 }
 
+std::string format_fixed(double x, int decimals) {
+    char text[48];
+    std::snprintf(text, sizeof text, "%.*f", decimals, x);
+    return text;
+}
+
 }  // namespace rastrum

@@ -3,6 +3,7 @@
 #include "nsb_moments.hpp"
 
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/nsb.hpp>
 
 #include <boost/math/quadrature/gauss.hpp>
@@ -28,6 +29,7 @@ using boost::math::trigamma;
 constexpr double stirling_from = 10;
 constexpr double series_from = 1e3;
 constexpr double chi_series_from = 100;
+constexpr double max_alphabet = 1e100;
 
 /// lnGamma(x) - [(x - 1/2) ln x - x + ln(2 pi)/2] for x >= 10 (Stirling series, Bernoulli numbers).
 double stirling_remainder(double x) {
@@ -45,8 +47,9 @@ double chi(double a) {
 }  // namespace
 
 grouped_counts group_counts(const std::vector<count>& counts, double alphabet) {
-    if (!std::isfinite(alphabet) || alphabet < 1) {
-        throw usage_error("NSB entropy: the alphabet size must be a finite number >= 1, got " + std::to_string(alphabet));
+    // The cap keeps K beta finite over the whole integration range (beta up to ~1e6 N^2).
+    if (!(alphabet >= 1 && alphabet <= max_alphabet)) {
+        throw usage_error("NSB entropy: the alphabet size must be between 1 and 1e100, got " + format_number(alphabet));
     }
     std::map<count, double> multiplicity;
     grouped_counts g;
@@ -59,7 +62,7 @@ grouped_counts group_counts(const std::vector<count>& counts, double alphabet) {
     }
     if (g.seen > alphabet) {
         throw usage_error("NSB entropy: " + std::to_string(static_cast<count>(g.seen)) +
-                          " distinct symbols were observed but the alphabet size is " + std::to_string(alphabet));
+                          " distinct symbols were observed but the alphabet size is " + format_number(alphabet));
     }
     if (alphabet > g.seen) g.groups.push_back({0, alphabet - g.seen});
     for (const auto& [n, m]: multiplicity) g.groups.push_back({static_cast<double>(n), m});
@@ -90,17 +93,18 @@ entropy_moments dirichlet_entropy_moments(const grouped_counts& g, double beta) 
     //   Var[H] = [sum a_i (d_i - dbar)^2 + sum chi(a_i) - chi(A)] / (A (A + 1)),  dbar = sum (a_i/A) d_i,
     // the centred form of E[H^2] - E[H]^2 (derivation in notes/methods-nsb.md).
     const double total = g.samples + g.alphabet * beta;
+    std::vector<double> psi(g.groups.size());
     double dbar = 0;
-    for (const auto& grp: g.groups) {
-        const double a = grp.value + beta;
-        dbar += grp.multiplicity * (a / total) * digamma(a + 1);
+    for (std::size_t j = 0; j < g.groups.size(); ++j) {
+        const double a = g.groups[j].value + beta;
+        psi[j] = digamma(a + 1);
+        dbar += g.groups[j].multiplicity * (a / total) * psi[j];
     }
     double spread = 0, chi_sum = -chi(total);
-    for (const auto& grp: g.groups) {
-        const double a = grp.value + beta;
-        const double d = digamma(a + 1) - dbar;
-        spread += grp.multiplicity * a * d * d;
-        chi_sum += grp.multiplicity * chi(a);
+    for (std::size_t j = 0; j < g.groups.size(); ++j) {
+        const double a = g.groups[j].value + beta, d = psi[j] - dbar;
+        spread += g.groups[j].multiplicity * a * d * d;
+        chi_sum += g.groups[j].multiplicity * chi(a);
     }
     entropy_moments m;
     m.mean = digamma(total + 1) - dbar;
@@ -149,11 +153,17 @@ constexpr double lowest_beta_times_k = 1e-12;
 constexpr double highest_beta_per_n2 = 1e6;
 constexpr double coarse_step = 0.5;     // in ln beta, for locating the posterior
 constexpr double negligible_log = 60;   // posterior weight below e^-60 of the peak is dropped
-constexpr double relative_tolerance = 1e-10;
-constexpr std::size_t max_intervals = 20000;
+// Targets: the mean to 1e-9 of itself, the variance to 1e-7 of itself (the sd to 5e-8). The
+// variance cannot be asked for more: the log density is a sum of terms of size N ln(K beta), so the
+// weights carry a relative rounding noise of ~1e-15 |ln P|, up to ~1e-8 at N = 1e6.
+constexpr double mean_tolerance = 1e-9;
+constexpr double variance_tolerance = 1e-7;
+constexpr double narrowest_interval = 1e-7;  // in ln beta; below this, differences are rounding noise
+constexpr std::size_t max_intervals = 4000;
 
 /// The integrands at one beta: w = posterior density in ln beta relative to the peak, times
-/// (1, E[H|beta], Var[H|beta], (E[H|beta] - reference)^2).
+/// (1, E[H|beta] - reference, Var[H|beta], (E[H|beta] - reference)^2). Centring on the entropy at
+/// the peak keeps the spread of E[H|beta] from being lost to cancellation.
 using values = std::array<double, 4>;
 
 class posterior {
@@ -176,7 +186,6 @@ public:
         return weighted(std::exp(log_evidence(g_, beta) - log_peak), beta);
     }
 
-    const grouped_counts& counts() const { return g_; }
     double log_peak = 0;
     double reference = 0;
 
@@ -185,7 +194,7 @@ private:
         if (!(w > 1e-300)) return {0, 0, 0, 0};
         const entropy_moments m = dirichlet_entropy_moments(g_, beta);
         const double d = m.mean - reference;
-        return {w, w * m.mean, w * m.variance, w * d * d};
+        return {w, w * d, w * m.variance, w * d * d};
     }
     const grouped_counts& g_;
 };
@@ -223,7 +232,8 @@ double peak_width(const posterior& p, double x) {
 
 struct interval {
     double a, b;
-    values integral, error;
+    values integral;  // Kronrod 15
+    values excess;    // Kronrod 15 minus Gauss 7, signed: errors of the four integrals are correlated
 };
 
 /// Gauss-Kronrod 15 with the embedded Gauss 7 rule as the error estimate, for all four integrands.
@@ -247,39 +257,125 @@ interval gauss_kronrod(const posterior& p, double a, double b) {
     interval out{a, b, {}, {}};
     for (std::size_t c = 0; c < 4; ++c) {
         out.integral[c] = half * k[c];
-        out.error[c] = std::abs(half * (k[c] - g[c]));
+        out.excess[c] = half * (k[c] - g[c]);
     }
     return out;
 }
 
-/// Globally adaptive: bisect the interval whose error most exceeds its share of the tolerance until
-/// the mass, the mean and the variance are each resolved to `relative_tolerance`.
+/// The posterior mean and variance (nats) from the four integrals.
+struct moments_of {
+    explicit moments_of(const values& t):
+        shift(t[1] / t[0]), variance((t[2] + t[3]) / t[0] - shift * shift) {}
+    double shift;     // mean - reference
+    double variance;
+};
+
+/// Globally adaptive: bisect the interval contributing most error until the mean and variance meet
+/// their targets. An interval's error in each is the first-order change that its Kronrod-Gauss
+/// excess would make to the final ratio, so an error common to all four integrals (the weight
+/// itself) cancels as it does in the ratio.
 values integrate(const posterior& p, const std::vector<double>& breaks) {
     std::vector<interval> parts;
     for (std::size_t i = 0; i + 1 < breaks.size(); ++i) parts.push_back(gauss_kronrod(p, breaks[i], breaks[i + 1]));
     while (true) {
-        values total{}, error{};
+        values total{};
         for (const auto& part: parts) {
-            for (std::size_t c = 0; c < 4; ++c) total[c] += part.integral[c], error[c] += part.error[c];
+            for (std::size_t c = 0; c < 4; ++c) total[c] += part.integral[c];
         }
-        const double mass = std::max(total[0], 1e-300);
-        const double mean = total[1] / mass, variance = (total[2] + total[3]) / mass;
-        // Targets in the units of each integral: mass, mass x entropy, mass x variance.
-        const std::array<double, 3> target{relative_tolerance * mass,
-                                           relative_tolerance * mass * std::max(std::abs(mean), 1e-3),
-                                           relative_tolerance * mass * std::max(variance, 1e-24)};
+        if (!(total[0] > 0)) throw internal_error("NSB entropy: the posterior over beta integrated to zero");
+        const moments_of m(total);
+        const double mean = p.reference + m.shift, second = (total[2] + total[3]) / total[0];
+        const double mean_target = mean_tolerance * std::max(std::abs(mean), std::sqrt(std::max(m.variance, 0.0)));
+        const double variance_target = variance_tolerance * std::max(m.variance, 1e-30);
         auto score = [&](const interval& part) {
-            return std::max({part.error[0] / target[0], part.error[1] / target[1],
-                             (part.error[2] + part.error[3]) / target[2]});
+            const values& d = part.excess;
+            const double mean_error = std::abs(d[1] - m.shift * d[0]) / total[0];
+            const double variance_error =
+                std::abs(d[2] + d[3] - second * d[0] - 2 * m.shift * (d[1] - m.shift * d[0])) / total[0];
+            return std::array<double, 2>{mean_error, variance_error};
         };
-        const bool done = error[0] <= target[0] && error[1] <= target[1] && error[2] + error[3] <= target[2];
-        if (done || parts.size() >= max_intervals) return total;
-        const auto worst = std::max_element(parts.begin(), parts.end(),
-                                            [&](const interval& u, const interval& v) { return score(u) < score(v); });
-        const double a = worst->a, b = worst->b, m = 0.5 * (a + b);
-        *worst = gauss_kronrod(p, a, m);
-        parts.push_back(gauss_kronrod(p, m, b));
+        double mean_error = 0, variance_error = 0, worst_score = 0;
+        interval* worst = nullptr;
+        for (auto& part: parts) {
+            const auto e = score(part);
+            mean_error += e[0], variance_error += e[1];
+            const double s = std::max(e[0] / mean_target, e[1] / variance_target);
+            if (s > worst_score && part.b - part.a > narrowest_interval) worst_score = s, worst = &part;
+        }
+        const bool done = mean_error <= mean_target && variance_error <= variance_target;
+        if (done || worst == nullptr || parts.size() >= max_intervals) return total;
+        const double a = worst->a, b = worst->b, mid = 0.5 * (a + b);
+        *worst = gauss_kronrod(p, a, mid);
+        parts.push_back(gauss_kronrod(p, mid, b));
     }
+}
+/// The log density on a coarse grid over the whole range of ln beta, to find where the posterior is.
+struct coarse_scan {
+    coarse_scan(const posterior& p, double low, double high) {
+        const auto steps = static_cast<std::size_t>(std::ceil((high - low) / coarse_step));
+        x.resize(steps + 1);
+        log_density.resize(steps + 1);
+        for (std::size_t i = 0; i <= steps; ++i) {
+            x[i] = low + (high - low) * static_cast<double>(i) / static_cast<double>(steps);
+            log_density[i] = p.log_density(x[i]);
+        }
+    }
+    std::size_t last() const { return x.size() - 1; }
+    std::vector<double> x, log_density;
+};
+
+/// Every local maximum of the scan that could matter (usually there is one), refined.
+std::vector<double> find_peaks(const posterior& p, const coarse_scan& scan) {
+    const std::size_t n = scan.last();
+    const double top = *std::max_element(scan.log_density.begin(), scan.log_density.end());
+    std::vector<double> peaks;
+    for (std::size_t i = 0; i <= n; ++i) {
+        const double here = scan.log_density[i];
+        const bool left_ok = i == 0 || here >= scan.log_density[i - 1];
+        const bool right_ok = i == n || here >= scan.log_density[i + 1];
+        if (left_ok && right_ok && here >= top - 40) {
+            peaks.push_back(refine_peak(p, scan.x[i == 0 ? 0 : i - 1], scan.x[i == n ? n : i + 1]));
+        }
+    }
+    return peaks;
+}
+
+/// The stretch of the scan [first, last] holding weight, widened by one step each way. A peak
+/// narrower than the step can leave every grid point negligible, so the peaks are covered too.
+std::array<std::size_t, 2> window(const posterior& p, const coarse_scan& scan, const std::vector<double>& peaks) {
+    const std::size_t n = scan.last();
+    std::size_t first = n, last = 0;
+    auto cover = [&](std::size_t i) { first = std::min(first, i), last = std::max(last, i); };
+    for (std::size_t i = 0; i <= n; ++i) {
+        if (scan.log_density[i] >= p.log_peak - negligible_log) cover(i);
+    }
+    const double step = scan.x[1] - scan.x[0];
+    for (double x: peaks) {
+        const auto below = static_cast<std::size_t>(std::max(0.0, std::floor((x - scan.x[0]) / step)));
+        cover(std::min(below, n));
+        cover(std::min(below + 1, n));
+    }
+    return {first > 0 ? first - 1 : 0, std::min(last + 1, n)};
+}
+
+/// Grid points of the window plus points at multiples of each peak's width around it.
+std::vector<double> breakpoints(const posterior& p, const coarse_scan& scan, const std::vector<double>& peaks,
+                                std::size_t first, std::size_t last) {
+    std::vector<double> breaks(scan.x.begin() + static_cast<std::ptrdiff_t>(first),
+                               scan.x.begin() + static_cast<std::ptrdiff_t>(last) + 1);
+    for (double x: peaks) {
+        const double width = peak_width(p, x);
+        for (double k: {0.0, 0.5, 1.0, 2.0, 3.0, 4.0, 6.0, 8.0, 12.0, 16.0}) {
+            for (double s: {-1.0, 1.0}) {
+                const double b = x + s * k * width;
+                if (b > scan.x[first] && b < scan.x[last]) breaks.push_back(b);
+            }
+        }
+    }
+    std::sort(breaks.begin(), breaks.end());
+    breaks.erase(std::unique(breaks.begin(), breaks.end(), [](double u, double v) { return v - u < 1e-13; }),
+                 breaks.end());
+    return breaks;
 }
 }  // namespace
 
@@ -290,51 +386,16 @@ nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size)
 
     const double x_low = std::log(lowest_beta_times_k / g.alphabet);
     const double x_high = std::log(highest_beta_per_n2) + 2 * std::log1p(g.samples);
-    const auto steps = static_cast<std::size_t>(std::ceil((x_high - x_low) / coarse_step));
-    std::vector<double> grid(steps + 1), log_density(steps + 1);
-    for (std::size_t i = 0; i <= steps; ++i) {
-        grid[i] = x_low + (x_high - x_low) * static_cast<double>(i) / static_cast<double>(steps);
-        log_density[i] = p.log_density(grid[i]);
-    }
-    const double coarse_max = *std::max_element(log_density.begin(), log_density.end());
+    const coarse_scan scan(p, x_low, x_high);
+    const std::vector<double> peaks = find_peaks(p, scan);
+    std::vector<double> peak_log_density;
+    for (double x: peaks) peak_log_density.push_back(p.log_density(x));
+    const auto best = std::max_element(peak_log_density.begin(), peak_log_density.end()) - peak_log_density.begin();
+    p.log_peak = peak_log_density[static_cast<std::size_t>(best)];
+    p.reference = dirichlet_entropy_moments(g, std::exp(peaks[static_cast<std::size_t>(best)])).mean;
 
-    // Refine every local maximum of the coarse grid that could matter (usually there is one).
-    std::vector<double> peaks;
-    double log_peak = coarse_max;
-    for (std::size_t i = 0; i <= steps; ++i) {
-        const bool left_ok = i == 0 || log_density[i] >= log_density[i - 1];
-        const bool right_ok = i == steps || log_density[i] >= log_density[i + 1];
-        if (!left_ok || !right_ok || log_density[i] < coarse_max - 40) continue;
-        const double x = refine_peak(p, grid[i == 0 ? 0 : i - 1], grid[i == steps ? steps : i + 1]);
-        peaks.push_back(x);
-        log_peak = std::max(log_peak, p.log_density(x));
-    }
-    p.log_peak = log_peak;
-    const double best = *std::max_element(peaks.begin(), peaks.end(),
-                                          [&](double u, double v) { return p.log_density(u) < p.log_density(v); });
-    p.reference = dirichlet_entropy_moments(g, std::exp(best)).mean;
-
-    // Integrate only where the coarse grid saw weight, with breakpoints resolving each peak.
-    std::size_t first = 0, last = steps;
-    while (first < steps && log_density[first] < log_peak - negligible_log) ++first;
-    while (last > first && log_density[last] < log_peak - negligible_log) --last;
-    first = first > 0 ? first - 1 : 0;
-    last = std::min(last + 1, steps);
-    std::vector<double> breaks(grid.begin() + static_cast<std::ptrdiff_t>(first),
-                               grid.begin() + static_cast<std::ptrdiff_t>(last) + 1);
-    for (double x: peaks) {
-        const double width = peak_width(p, x);
-        for (double k: {0.0, 0.5, 1.0, 2.0, 3.0, 4.0, 6.0, 8.0, 12.0, 16.0}) {
-            for (double s: {-1.0, 1.0}) {
-                const double b = x + s * k * width;
-                if (b > grid[first] && b < grid[last]) breaks.push_back(b);
-            }
-        }
-    }
-    std::sort(breaks.begin(), breaks.end());
-    breaks.erase(std::unique(breaks.begin(), breaks.end(), [](double u, double v) { return v - u < 1e-13; }),
-                 breaks.end());
-    values total = integrate(p, breaks);
+    const auto [first, last] = window(p, scan, peaks);
+    values total = integrate(p, breakpoints(p, scan, peaks, first, last));
 
     // Beyond the ends the posterior per unit xi is flat to first order: add it times the xi left over.
     auto add_tail = [&](double beta, double xi_left) {
@@ -342,13 +403,11 @@ nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size)
         for (std::size_t c = 0; c < 4; ++c) total[c] += xi_left * f[c];
     };
     if (first == 0) add_tail(std::exp(x_low), prior_mean_entropy(g.alphabet, std::exp(x_low)));
-    if (last == steps) add_tail(std::exp(x_high), prior_mean_entropy_gap(g.alphabet, std::exp(x_high)));
+    if (last == scan.last()) add_tail(std::exp(x_high), prior_mean_entropy_gap(g.alphabet, std::exp(x_high)));
 
-    const double mean = total[1] / total[0];
-    const double shift = mean - p.reference;
-    const double variance = std::max(0.0, (total[2] + total[3]) / total[0] - shift * shift);
+    const moments_of m(total);
     const double ln2 = std::log(2.0);
-    return {mean / ln2, std::sqrt(variance) / ln2};
+    return {(p.reference + m.shift) / ln2, std::sqrt(std::max(m.variance, 0.0)) / ln2};
 }
 
 }  // namespace rastrum

@@ -21,8 +21,8 @@ struct grouped_counts {
     double seen = 0;                  // symbols with a non-zero count
 };
 
-/// Groups `counts` over an alphabet of `alphabet` symbols. Throws usage_error when the alphabet is not
-/// finite, is below 1, or is smaller than the number of non-zero counts.
+/// Groups `counts` over an alphabet of `alphabet` symbols. Throws usage_error when the alphabet is
+/// outside [1, 1e100] or smaller than the number of non-zero counts.
 grouped_counts group_counts(const std::vector<count>& counts, double alphabet);
 
 struct entropy_moments {

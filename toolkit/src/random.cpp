@@ -68,4 +68,27 @@ std::uint64_t random_stream::below(std::uint64_t n) {
 
 double random_stream::exponential() { return -std::log1p(-uniform()); }
 
+double gaussian(random_stream& rng) {
+    const double u = 1.0 - rng.uniform();
+    const double v = rng.uniform();
+    return std::sqrt(-2.0 * std::log(u)) * std::cos(6.283185307179586 * v);
+}
+
+double log_gamma_variate(double shape, random_stream& rng) {
+    if (shape < 1) {
+        const double larger = log_gamma_variate(shape + 1, rng);  // drawn first, then the boost's uniform
+        return larger + std::log(1.0 - rng.uniform()) / shape;
+    }
+    const double d = shape - 1.0 / 3.0, c = 1.0 / std::sqrt(9 * d);
+    while (true) {
+        double x, v;
+        do {
+            x = gaussian(rng);
+            v = 1 + c * x;
+        } while (v <= 0);
+        v = v * v * v;
+        if (std::log(1.0 - rng.uniform()) < 0.5 * x * x + d - d * v + d * std::log(v)) return std::log(d * v);
+    }
+}
+
 }  // namespace rastrum

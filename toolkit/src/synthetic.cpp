@@ -18,32 +18,6 @@ double binary_entropy(double p) {
 
 namespace {
 
-constexpr double two_pi = 6.283185307179586;
-
-double gaussian(random_stream& rng) {
-    // Box-Muller; one of the pair is discarded to keep every draw independent of call order.
-    const double u = 1.0 - rng.uniform();
-    const double v = rng.uniform();
-    return std::sqrt(-2.0 * std::log(u)) * std::cos(two_pi * v);
-}
-
-/// Gamma(shape, 1) by Marsaglia & Tsang 2000 (ACM TOMS 26:363), with the shape < 1 boost
-/// gamma(a) = gamma(a + 1) u^(1/a) from the same paper.
-double gamma_draw(double shape, random_stream& rng) {
-    if (shape < 1) return gamma_draw(shape + 1, rng) * std::pow(1.0 - rng.uniform(), 1.0 / shape);
-    const double d = shape - 1.0 / 3.0, c = 1.0 / std::sqrt(9 * d);
-    while (true) {
-        double x, v;
-        do {
-            x = gaussian(rng);
-            v = 1 + c * x;
-        } while (v <= 0);
-        v = v * v * v;
-        const double u = 1.0 - rng.uniform();
-        if (std::log(u) < 0.5 * x * x + d - d * v + d * std::log(v)) return d * v;
-    }
-}
-
 std::uint64_t poisson_draw(double mean, random_stream& rng) {
     // Inversion by sequential search: exact, and fast for the small means used here.
     if (mean <= 0) return 0;
@@ -230,7 +204,7 @@ synthetic_recording make_frozen_bins(const frozen_bins_spec& spec) {
         }
         std::vector<double> p(bins);
         // Gamma-distributed gain with mean 1 and coefficient of variation m (shape 1/m^2).
-        for (auto& x: p) x = m > 0 ? std::min(1.0, mean_p * m * m * gamma_draw(1 / (m * m), rng)) : mean_p;
+        for (auto& x: p) x = m > 0 ? std::min(1.0, mean_p * m * m * std::exp(log_gamma_variate(1 / (m * m), rng))) : mean_p;
         const binary_chain chain(p, spec.refractory);
         auto& spikes = out.rec.units[u].spike_times;
         for (std::size_t k = 0; k < n_trials; ++k) {

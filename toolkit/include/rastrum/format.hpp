@@ -5,4 +5,6 @@
 
 namespace rastrum {
 std::string format_number(double x);
+/// x with a fixed number of decimals, for quantities with a natural resolution (bits/s: 2).
+std::string format_fixed(double x, int decimals);
 }  // namespace rastrum

@@ -15,7 +15,8 @@ struct nsb_estimate {
 
 /// `counts`: the non-zero (or any) counts of observed symbols; `alphabet_size` K >= number of entries
 /// (symbols never seen count as zeros). Throws usage_error when K < 1 or K is smaller than the number
-/// of non-zero counts. With no samples returns the prior mean and sd.
+/// of non-zero counts (and when K is above 1e100, where K beta would overflow). With no samples
+/// returns the prior mean and sd.
 nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size);
 
 }  // namespace rastrum

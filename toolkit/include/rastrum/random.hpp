@@ -35,6 +35,14 @@ private:
     std::uint64_t s_[4];
 };
 
+/// A standard normal variate by Box-Muller; the pair's second value is discarded so that a draw
+/// never depends on what was drawn before.
+double gaussian(random_stream& rng);
+
+/// The logarithm of a Gamma(shape, 1) variate (Marsaglia & Tsang 2000, ACM TOMS 26:363, with their
+/// boost G(a) = G(a + 1) U^(1/a) for a < 1), kept in logs so that tiny shapes do not underflow.
+double log_gamma_variate(double shape, random_stream& rng);
+
 /// Fisher-Yates shuffle driven by `rng`.
 template <typename T>
 void shuffle(std::vector<T>& v, random_stream& rng) {

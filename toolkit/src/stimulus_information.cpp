@@ -1,0 +1,249 @@
+#include <rastrum/entropy.hpp>
+#include <rastrum/errors.hpp>
+#include <rastrum/extrapolation.hpp>
+#include <rastrum/nsb.hpp>
+#include <rastrum/random.hpp>
+#include <rastrum/stimulus_information.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <map>
+#include <numeric>
+
+namespace rastrum {
+
+const char* info_estimator_name(info_estimator e) {
+    switch (e) {
+    case info_estimator::plugin: return "plug-in";
+    case info_estimator::miller_madow: return "miller-madow";
+    case info_estimator::jackknife: return "jackknife";
+    case info_estimator::panzeri_treves: return "panzeri-treves";
+    case info_estimator::quadratic_extrapolation: return "quadratic-extrapolation";
+    case info_estimator::nsb: return "nsb";
+    }
+    throw internal_error("unknown information estimator");
+}
+
+info_estimator parse_info_estimator(const std::string& name) {
+    for (info_estimator e: all_info_estimators) {
+        if (name == info_estimator_name(e)) return e;
+    }
+    throw usage_error("unknown estimator '" + name +
+                      "': choose plug-in, miller-madow, jackknife, panzeri-treves, quadratic-extrapolation or nsb");
+}
+
+namespace {
+
+/// Response histograms: pooled, and per condition, over the trials in `use` (all when empty).
+struct histograms {
+    std::vector<count> pooled;
+    std::vector<std::vector<count>> by_condition;
+    std::vector<count> trials_in;  // per condition
+    count trials = 0;
+};
+
+std::vector<count> counts_of(std::vector<word_code> codes) {
+    std::sort(codes.begin(), codes.end());
+    std::vector<count> counts;
+    for (std::size_t i = 0; i < codes.size();) {
+        std::size_t j = i;
+        while (j < codes.size() && codes[j] == codes[i]) ++j;
+        counts.push_back(j - i);
+        i = j;
+    }
+    return counts;
+}
+
+histograms histograms_of(const labelled_responses& t, const std::vector<std::size_t>& use) {
+    histograms h;
+    std::vector<word_code> pooled;
+    std::vector<std::vector<word_code>> per(t.conditions);
+    auto take = [&](std::size_t k) {
+        pooled.push_back(t.response[k]);
+        per[t.condition[k]].push_back(t.response[k]);
+    };
+    if (use.empty()) {
+        for (std::size_t k = 0; k < t.response.size(); ++k) take(k);
+    } else {
+        for (std::size_t k: use) take(k);
+    }
+    h.trials = pooled.size();
+    h.pooled = counts_of(std::move(pooled));
+    for (auto& codes: per) {
+        h.trials_in.push_back(codes.size());
+        h.by_condition.push_back(counts_of(std::move(codes)));
+    }
+    return h;
+}
+
+/// I = H(R) - sum_s p(s) H(R|s) with p(s) = N_s / N and each entropy by `entropy`.
+template <typename Entropy>
+double information_with(const histograms& h, Entropy entropy) {
+    if (h.trials == 0) return 0;
+    double noise = 0;
+    for (std::size_t s = 0; s < h.by_condition.size(); ++s) {
+        if (h.trials_in[s] == 0) continue;
+        noise += static_cast<double>(h.trials_in[s]) / static_cast<double>(h.trials) * entropy(h.by_condition[s]);
+    }
+    return entropy(h.pooled) - noise;
+}
+
+double plugin_of(const std::vector<count>& c) { return plugin_entropy(summarize_counts(c)); }
+
+double plugin_information(const histograms& h) { return information_with(h, plugin_of); }
+
+// Leave-one-trial-out: removing a trial with response r in condition s changes H(R) in one bin,
+// H(R|s) in one bin and every weight N_s' / N; trials in the same (s, r) cell give the same value.
+double jackknife_information(const labelled_responses& t) {
+    const double n = static_cast<double>(t.response.size());
+    if (n < 2) return plugin_information(histograms_of(t, {}));
+    std::map<word_code, count> pooled;
+    std::vector<std::map<word_code, count>> per(t.conditions);
+    std::vector<count> in_condition(t.conditions, 0);
+    for (std::size_t k = 0; k < t.response.size(); ++k) {
+        ++pooled[t.response[k]];
+        ++per[t.condition[k]][t.response[k]];
+        ++in_condition[t.condition[k]];
+    }
+    auto summary_of = [](const std::map<word_code, count>& m) {
+        count_summary s;
+        for (const auto& [code, c]: m) s.add(c);
+        return s;
+    };
+    const count_summary all = summary_of(pooled);
+    std::vector<count_summary> cond;
+    std::vector<double> h_cond;
+    for (const auto& m: per) {
+        cond.push_back(summary_of(m));
+        h_cond.push_back(plugin_entropy(cond.back()));
+    }
+    // Entropy of a histogram with one sample less in a bin that held c samples.
+    auto without_one = [](const count_summary& s, count c) {
+        const double m = static_cast<double>(s.samples) - 1;
+        if (m <= 0) return 0.0;
+        return std::log2(m) - (s.sum_n_log2_n - n_log2_n(c) + n_log2_n(c - 1)) / m;
+    };
+    double weighted_noise = 0;  // sum_s N_s H(R|s)
+    for (std::size_t s = 0; s < t.conditions; ++s) weighted_noise += static_cast<double>(in_condition[s]) * h_cond[s];
+    double sum_left_out = 0;
+    for (std::size_t s = 0; s < t.conditions; ++s) {
+        for (const auto& [code, c]: per[s]) {
+            const double h_total = without_one(all, pooled[code]);
+            const double h_s = without_one(cond[s], c);
+            const double noise = (weighted_noise - static_cast<double>(in_condition[s]) * h_cond[s] +
+                                  (static_cast<double>(in_condition[s]) - 1) * h_s) / (n - 1);
+            sum_left_out += static_cast<double>(c) * (h_total - noise);
+        }
+    }
+    return n * plugin_information(histograms_of(t, {})) - (n - 1) * sum_left_out / n;
+}
+
+// Stratified random subsets: each condition's trials in random order, cut into quarters; halves are
+// pairs of quarters. The plug-in information on the full set, the halves and the quarters of every
+// split is fitted as I(N) = I_inf + a/N + b/N^2, each level weighing alike.
+double extrapolated_information(const labelled_responses& t, const info_settings& settings) {
+    std::vector<std::vector<std::size_t>> members(t.conditions);
+    for (std::size_t k = 0; k < t.condition.size(); ++k) members[t.condition[k]].push_back(k);
+    std::vector<double> x, y, w;
+    const double n = static_cast<double>(t.response.size());
+    x.push_back(1 / n);
+    y.push_back(plugin_information(histograms_of(t, {})));
+    w.push_back(1);
+    for (unsigned split = 0; split < settings.splits; ++split) {
+        random_stream rng(derive_seed(settings.seed, {0x9e0ULL, split}));
+        std::vector<std::vector<std::size_t>> quarter(4);
+        for (auto m: members) {
+            shuffle(m, rng);
+            for (std::size_t i = 0; i < m.size(); ++i) quarter[i * 4 / m.size()].push_back(m[i]);
+        }
+        for (int level = 1; level <= 2; ++level) {
+            const int blocks = 1 << level;
+            for (int b = 0; b < blocks; ++b) {
+                std::vector<std::size_t> use;
+                for (int q = b * 4 / blocks; q < (b + 1) * 4 / blocks; ++q) {
+                    use.insert(use.end(), quarter[static_cast<std::size_t>(q)].begin(),
+                               quarter[static_cast<std::size_t>(q)].end());
+                }
+                if (use.empty()) continue;
+                x.push_back(1 / static_cast<double>(use.size()));
+                y.push_back(plugin_information(histograms_of(t, use)));
+                w.push_back(1.0 / (blocks * settings.splits));
+            }
+        }
+    }
+    return fit_inverse_size(x, y, w).at_infinity;
+}
+
+}  // namespace
+
+double panzeri_treves_bias(const std::vector<double>& relevant_per_condition, double relevant_pooled, double trials) {
+    double sum = 0;
+    for (double r: relevant_per_condition) sum += r - 1;
+    return (sum - (relevant_pooled - 1)) / (2 * trials * std::log(2.0));
+}
+
+double relevant_responses(const std::vector<count>& counts, double alphabet) {
+    // Observed values, plus the unseen ones a Dirichlet posterior would expect to show up in a
+    // sample of the same size: sum over values of 1 - (1 - q)^N with q the posterior mean
+    // (n + beta) / (N + K beta), beta chosen by maximum evidence (notes/methods.md).
+    std::vector<count> seen;
+    count n = 0;
+    for (count c: counts) {
+        if (c > 0) seen.push_back(c);
+        n += c;
+    }
+    const double observed = static_cast<double>(seen.size());
+    const double k = std::max(alphabet, observed);
+    if (n == 0 || k <= observed) return observed;
+    const double N = static_cast<double>(n);
+    auto log_evidence = [&](double beta) {
+        double e = std::lgamma(k * beta) - std::lgamma(N + k * beta);
+        for (count c: seen) e += std::lgamma(static_cast<double>(c) + beta) - std::lgamma(beta);
+        return e;
+    };
+    double best_beta = 1e-6, best = -INFINITY;
+    for (double log_beta = -14; log_beta <= 7; log_beta += 0.05) {
+        const double beta = std::exp(log_beta);
+        const double e = log_evidence(beta);
+        if (e > best) {
+            best = e;
+            best_beta = beta;
+        }
+    }
+    double relevant = 0;
+    const double total = N + k * best_beta;
+    for (count c: seen) relevant += -std::expm1(N * std::log1p(-(static_cast<double>(c) + best_beta) / total));
+    const double unseen = k - observed;
+    relevant += unseen * -std::expm1(N * std::log1p(-best_beta / total));
+    return std::min(k, std::max(observed, relevant));
+}
+
+double stimulus_information(const labelled_responses& t, info_estimator estimator, const info_settings& settings) {
+    if (t.response.size() != t.condition.size()) throw internal_error("stimulus_information: ragged trials");
+    for (std::uint32_t c: t.condition) {
+        if (c >= t.conditions) throw internal_error("stimulus_information: condition index out of range");
+    }
+    switch (estimator) {
+    case info_estimator::plugin: return plugin_information(histograms_of(t, {}));
+    case info_estimator::miller_madow:
+        return information_with(histograms_of(t, {}),
+                                [](const std::vector<count>& c) { return miller_madow_entropy(summarize_counts(c)); });
+    case info_estimator::jackknife: return jackknife_information(t);
+    case info_estimator::panzeri_treves: {
+        const histograms h = histograms_of(t, {});
+        std::vector<double> per;
+        for (std::size_t s = 0; s < h.by_condition.size(); ++s) {
+            if (h.trials_in[s] > 0) per.push_back(relevant_responses(h.by_condition[s], t.alphabet));
+        }
+        return plugin_information(h) -
+               panzeri_treves_bias(per, relevant_responses(h.pooled, t.alphabet), static_cast<double>(h.trials));
+    }
+    case info_estimator::quadratic_extrapolation: return extrapolated_information(t, settings);
+    case info_estimator::nsb:
+        return information_with(histograms_of(t, {}),
+                                [&](const std::vector<count>& c) { return nsb_entropy(c, t.alphabet).entropy_bits; });
+    }
+    throw internal_error("unknown information estimator");
+}
+
+}  // namespace rastrum
