@@ -1,12 +1,8 @@
 #include "command_line.hpp"
 #include "commands.hpp"
 
-#include <rastrum/atomic_file.hpp>
 #include <rastrum/direct_results.hpp>
 #include <rastrum/errors.hpp>
-#include <rastrum/parallel.hpp>
-#include <rastrum/recording_hdf5.hpp>
-#include <rastrum/sha256.hpp>
 
 #include <iostream>
 
@@ -62,36 +58,14 @@ int run_direct(int argc, char** argv) {
     if (vm.count("fit-letters")) request.settings.fit_letters = parse_int_range(fit_text, "--fit-letters");
     if (vm.count("stimulus")) request.stimulus = stimulus;
     request.settings.subsets = parse_subset_estimator(subset_text);
-    const std::optional<std::string> json_path = vm.count("json") ? std::optional(json_out) : std::nullopt;
-    const std::optional<std::string> csv_path = vm.count("csv") ? std::optional(csv_out) : std::nullopt;
-    if (csv_path && *csv_path == "-") throw usage_error("--csv needs a file name");
     check_direct_request(request);
-    check_output_paths({json_path, csv_path}, {file});
-
-    provenance origin;
-    origin.command_line = joined_command_line(argc + 1, argv - 1);
-    origin.input_path = file;
-    origin.started_utc = utc_now();
-    origin.threads = effective_threads(request.threads);
-    const recording rec = read_recording_hdf5(file);
-    origin.input_sha256 = file_sha256(file);
-    for (const auto& w: rec.warnings) note(quiet, "warning: " + w);
-
-    const auto records = run_direct(rec, request);
-    origin.finished_utc = utc_now();
-
-    const std::string json_text = direct_json(records, request, origin).dump(2) + "\n";
-    std::vector<std::pair<std::string, std::string>> files;
-    if (json_path && *json_path != "-") files.emplace_back(*json_path, json_text);
-    if (csv_path) files.emplace_back(*csv_path, direct_csv(records));
-    write_texts_atomically(files);
-    if (json_path && *json_path == "-") {
-        std::cout << json_text;
-    } else if (!quiet) {
-        std::cout << direct_table(records, request);
-    }
-    for (const auto& [path, text]: files) note(quiet, "wrote " + path);
-    return 0;
+    const output_choice out = choose_outputs(vm, file, quiet);
+    return analyse_and_write(argc, argv, file, request.threads, out, [&](const recording& rec, provenance& origin) {
+        const auto records = run_direct(rec, request);
+        origin.finished_utc = utc_now();
+        return rendered_results{direct_json(records, request, origin).dump(2) + "\n", direct_csv(records),
+                                direct_table(records, request)};
+    });
 }
 
 }  // namespace rastrum::app

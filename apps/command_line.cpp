@@ -1,6 +1,10 @@
 #include "command_line.hpp"
 
+#include <rastrum/atomic_file.hpp>
 #include <rastrum/errors.hpp>
+#include <rastrum/parallel.hpp>
+#include <rastrum/recording_hdf5.hpp>
+#include <rastrum/sha256.hpp>
 #include <rastrum/format.hpp>
 
 #include <cmath>
@@ -157,6 +161,41 @@ void check_output_paths(const std::vector<std::optional<std::string>>& outputs, 
         }
         if (fs::is_directory(p, ec)) throw usage_error("output " + *out + " is a folder");
     }
+}
+
+output_choice choose_outputs(const po::variables_map& vm, const std::string& input, bool quiet) {
+    output_choice out;
+    out.quiet = quiet;
+    if (vm.count("json")) out.json = vm["json"].as<std::string>();
+    if (vm.count("csv")) out.csv = vm["csv"].as<std::string>();
+    if (out.csv && *out.csv == "-") throw usage_error("--csv needs a file name");
+    check_output_paths({out.json, out.csv}, {input});
+    return out;
+}
+
+int analyse_and_write(int argc, char** argv, const std::string& file, unsigned threads, const output_choice& out,
+                      const std::function<rendered_results(const recording&, provenance&)>& analyse) {
+    provenance origin;
+    // argv[0] is the subcommand's name; the program's own name sits just before it.
+    origin.command_line = joined_command_line(argc + 1, argv - 1);
+    origin.input_path = file;
+    origin.started_utc = utc_now();
+    origin.threads = effective_threads(threads);
+    const recording rec = read_recording_hdf5(file);
+    origin.input_sha256 = file_sha256(file);
+    for (const auto& w: rec.warnings) note(out.quiet, "warning: " + w);
+    const rendered_results results = analyse(rec, origin);
+    std::vector<std::pair<std::string, std::string>> files;
+    if (out.json && *out.json != "-") files.emplace_back(*out.json, results.json);
+    if (out.csv) files.emplace_back(*out.csv, results.csv);
+    write_texts_atomically(files);
+    if (out.json && *out.json == "-") {
+        std::cout << results.json;
+    } else if (!out.quiet) {
+        std::cout << results.table;
+    }
+    for (const auto& [path, text]: files) note(out.quiet, "wrote " + path);
+    return 0;
 }
 
 void note(bool quiet, const std::string& text) {

@@ -1,9 +1,13 @@
 #pragma once
 // What every subcommand shares: parsing of option values, the usage-error convention, and
 // writing outputs so that a failure leaves nothing half-written.
+#include <rastrum/provenance.hpp>
+#include <rastrum/recording.hpp>
+
 #include <boost/program_options.hpp>
 
 #include <cstdint>
+#include <functional>
 #include <optional>
 #include <string>
 #include <utility>
@@ -49,6 +53,29 @@ std::string joined_command_line(int argc, char** argv);
 /// Checks, before any work is done, that each output path can be written: its folder exists, it is
 /// not an input, and no two outputs share a path. Throws usage_error.
 void check_output_paths(const std::vector<std::optional<std::string>>& outputs, const std::vector<std::string>& inputs);
+
+/// Where an analysis writes: --json (a file or '-' for stdout), --csv, and whether to stay quiet.
+struct output_choice {
+    std::optional<std::string> json;
+    std::optional<std::string> csv;
+    bool quiet = false;
+};
+
+/// Reads --json and --csv from `vm` and checks them against the input before any work is done.
+output_choice choose_outputs(const po::variables_map& vm, const std::string& input, bool quiet);
+
+/// What an analysis produces for its outputs.
+struct rendered_results {
+    std::string json;
+    std::string csv;
+    std::string table;
+};
+
+/// The part every analysis command shares: reads the recording (loader warnings to stderr), fills
+/// the provenance, lets `analyse` run and render (it sets `finished_utc`), writes the outputs all
+/// together and atomically, and prints the table or the JSON.
+int analyse_and_write(int argc, char** argv, const std::string& file, unsigned threads, const output_choice& out,
+                      const std::function<rendered_results(const recording&, provenance&)>& analyse);
 
 /// Status and progress lines for people go to stderr, never stdout.
 void note(bool quiet, const std::string& text);

@@ -5,4 +5,5 @@ namespace rastrum::app {
 int run_survey(int argc, char** argv);
 int run_direct(int argc, char** argv);
 int run_synth(int argc, char** argv);
+int run_stiminfo(int argc, char** argv);
 }  // namespace rastrum::app

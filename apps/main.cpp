@@ -22,6 +22,8 @@ void print_overview() {
                  "  survey   what a recording holds: units, spikes in and outside trials, trials, labels\n"
                  "  direct   direct method: information rate (bits/s) and bits per spike about a repeated\n"
                  "           stimulus, extrapolated to infinite data and word length\n"
+                 "  stiminfo stimulus information: bits about which of several labelled conditions was shown,\n"
+                 "           by six estimators, with a label-shuffle null and a bootstrap interval\n"
                  "  synth    write a synthetic recording with known answers\n\n"
                  "'rastrum COMMAND --help' describes each command.\n\n"
                  "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
@@ -49,6 +51,7 @@ int main(int argc, char** argv) {
         if (command == "survey") return rastrum::app::run_survey(argc - 1, argv + 1);
         if (command == "direct") return rastrum::app::run_direct(argc - 1, argv + 1);
         if (command == "synth") return rastrum::app::run_synth(argc - 1, argv + 1);
+        if (command == "stiminfo") return rastrum::app::run_stiminfo(argc - 1, argv + 1);
         std::cerr << "rastrum: error: unknown command '" << command << "'\nTry 'rastrum --help'.\n";
         return exit_usage;
     } catch (const rastrum::usage_error& e) {

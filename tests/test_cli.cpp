@@ -221,3 +221,46 @@ TEST(cli, numbers_are_checked_and_options_spelled_in_full) {
     EXPECT_EQ(too_fine.exit_code, 4) << too_fine.err;
     EXPECT_NE(too_fine.err.find("wider bin"), std::string::npos) << too_fine.err;
 }
+
+TEST(cli, stiminfo_writes_stable_json_and_refuses_bad_labels_and_windows) {
+    const std::string folder = fresh_folder("cli-stiminfo");
+    const std::string rec = folder + "/c.h5";
+    ASSERT_EQ(run_rastrum("synth conditions --out " + rec + " --duration-s 0.5 --means 2,4,6,9").exit_code, 0);
+    const auto help = run_rastrum("stiminfo --help");
+    EXPECT_EQ(help.exit_code, 0);
+    for (const char* option: {"--unit", "--window-ms", "--code", "--bin-ms", "--binary", "--stimuli", "--estimators",
+                              "--null-shuffles", "--bootstrap", "--interval-estimator", "--slide-ms", "--seed", "--threads",
+                              "--json", "--csv"}) {
+        EXPECT_NE(help.out.find(option), std::string::npos) << option;
+    }
+    const auto r = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --json " + folder + "/s.json --csv " +
+                               folder + "/s.csv --null-shuffles 50 --bootstrap 20");
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const json d = json::parse(read_file(folder + "/s.json"));
+    EXPECT_EQ(d["analysis"], "stiminfo");
+    const json& rec0 = d["records"][0];
+    for (const char* key: {"unit", "units", "window_ms", "code", "bin_ms", "trials", "stimuli", "trials_per_stimulus",
+                           "stimulus_entropy_bits", "response_alphabet", "distinct_responses", "info_bits", "null",
+                           "info_null_subtracted_bits", "info_ci95_bits", "bits_per_spike", "population", "warnings"}) {
+        EXPECT_TRUE(rec0.contains(key)) << key;
+    }
+    for (const char* name: {"plug-in", "miller-madow", "jackknife", "panzeri-treves", "quadratic-extrapolation", "nsb"}) {
+        EXPECT_TRUE(rec0["info_bits"].contains(name)) << name;
+    }
+    EXPECT_EQ(rec0["trials"], 120);
+    EXPECT_EQ(rec0["null"]["shuffles"], 50);
+    const std::string csv = read_file(folder + "/s.csv");
+    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 1 + 6);  // header + one row per estimator
+
+    const auto bad_label = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --stimuli a,zz --json " + folder + "/x.json");
+    EXPECT_EQ(bad_label.exit_code, 2);
+    EXPECT_NE(bad_label.err.find("zz"), std::string::npos) << bad_label.err;
+    const auto long_window = run_rastrum("stiminfo " + rec + " --window-ms 0:900 --code count --json " + folder + "/x.json");
+    EXPECT_EQ(long_window.exit_code, 4);
+    EXPECT_NE(long_window.err.find("shortest trial"), std::string::npos) << long_window.err;
+    EXPECT_EQ(run_rastrum("stiminfo " + rec + " --window-ms 500:100 --code count --json " + folder + "/x.json").exit_code, 2);
+    EXPECT_EQ(run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code rate --json " + folder + "/x.json").exit_code, 2);
+    EXPECT_EQ(run_rastrum("stiminfo " + small_recording() + " --window-ms 0:500 --code count --json " + folder + "/x.json").exit_code, 2)
+        << "a recording without labels";
+    EXPECT_FALSE(file_exists(folder + "/x.json"));
+}

@@ -2,25 +2,13 @@
 /// How direct-method results leave the tool: stable JSON for scripts (keys are added, never
 /// renamed), tidy CSV (one row per unit, bin width and word length) and a table for people.
 #include <rastrum/direct_analysis.hpp>
+#include <rastrum/provenance.hpp>
 
 #include <nlohmann/json.hpp>
 #include <string>
 #include <vector>
 
 namespace rastrum {
-
-/// Where a result came from, so any number can be traced to the command that made it.
-struct provenance {
-    std::string command_line;
-    std::string input_path;
-    std::string input_sha256;
-    std::string started_utc;   // ISO 8601
-    std::string finished_utc;
-    unsigned threads = 1;
-};
-
-/// Current UTC time as ISO 8601 with seconds.
-std::string utc_now();
 
 nlohmann::ordered_json direct_parameters_json(const direct_request& request);
 nlohmann::ordered_json direct_json(const std::vector<direct_record>& records, const direct_request& request,

@@ -1,21 +1,10 @@
 #include <rastrum/direct_results.hpp>
-#include <rastrum/version.hpp>
 
 #include <cmath>
 #include <cstdio>
-#include <ctime>
 #include <sstream>
 
 namespace rastrum {
-
-std::string utc_now() {
-    const std::time_t now = std::time(nullptr);
-    std::tm tm{};
-    gmtime_r(&now, &tm);
-    char text[32];
-    std::strftime(text, sizeof text, "%Y-%m-%dT%H:%M:%SZ", &tm);
-    return text;
-}
 
 namespace {
 using json = nlohmann::ordered_json;
@@ -97,16 +86,8 @@ nlohmann::ordered_json direct_parameters_json(const direct_request& q) {
 
 nlohmann::ordered_json direct_json(const std::vector<direct_record>& records, const direct_request& request,
                                    const provenance& origin) {
-    json j;
-    j["tool"] = "rastrum";
-    j["version"] = version();
-    j["analysis"] = "direct";
-    j["input"] = {{"path", origin.input_path}, {"sha256", origin.input_sha256}};
+    json j = result_head("direct", origin);
     j["parameters"] = direct_parameters_json(request);
-    j["run"] = {{"command_line", origin.command_line},
-                {"started_utc", origin.started_utc},
-                {"finished_utc", origin.finished_utc},
-                {"threads", origin.threads}};
     j["records"] = json::array();
     for (const auto& r: records) j["records"].push_back(record_json(r));
     return j;

@@ -1,0 +1,202 @@
+#include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
+#include <rastrum/parallel.hpp>
+#include <rastrum/random.hpp>
+#include <rastrum/stiminfo_analysis.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <set>
+
+namespace rastrum {
+
+void check_stiminfo_request(const stiminfo_request& q) {
+    const auto& r = q.response;
+    if (!(r.window_start >= 0) || !(r.window_stop > r.window_start)) {
+        throw usage_error("--window-ms A:B needs 0 <= A < B, got " + format_number(r.window_start * 1000) + ":" +
+                          format_number(r.window_stop * 1000));
+    }
+    if (r.code != response_code::spike_count && !(r.bin_width > 0)) throw usage_error("--bin-ms must be positive");
+    if (q.slide && (!(q.slide->first > 0) || !(q.slide->second > 0))) {
+        throw usage_error("--slide-ms W:S needs a positive width and step");
+    }
+    if (q.estimators.empty()) throw usage_error("--estimators: name at least one");
+    if (q.settings.splits < 1) throw usage_error("--splits must be at least 1");
+}
+
+namespace {
+
+std::vector<std::pair<seconds, seconds>> windows_of(const stiminfo_request& q) {
+    std::vector<std::pair<seconds, seconds>> w;
+    const seconds a = q.response.window_start, b = q.response.window_stop;
+    if (!q.slide) return {{a, b}};
+    const auto [width, step] = *q.slide;
+    for (seconds t = a; t + width <= b + 1e-12; t += step) w.emplace_back(t, t + width);
+    if (w.empty()) throw usage_error("--slide-ms: the sliding window is wider than --window-ms");
+    return w;
+}
+
+}  // namespace
+
+std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_request& q) {
+    check_stiminfo_request(q);
+    if (!rec.has_stimulus()) {
+        throw usage_error(rec.source + " has no /trials/stimulus labels: stimulus information needs labelled conditions");
+    }
+    std::vector<const unit_spikes*> units;
+    if (q.units.empty()) {
+        for (const auto& u: rec.units) units.push_back(&u);
+    } else {
+        for (const auto& id: q.units) units.push_back(&rec.unit(id));
+    }
+    // Conditions: the chosen labels, each keeping at least two trials.
+    std::vector<std::pair<std::string, std::size_t>> labels = stimulus_labels(rec);
+    if (!q.stimuli.empty()) {
+        std::vector<std::pair<std::string, std::size_t>> chosen;
+        for (const auto& name: q.stimuli) {
+            auto it = std::find_if(labels.begin(), labels.end(), [&](const auto& l) { return l.first == name; });
+            if (it == labels.end()) {
+                std::string known;
+                for (const auto& l: labels) known += (known.empty() ? "" : ", ") + l.first;
+                throw usage_error("--stimuli: no trial is labelled '" + name + "'; labels: " + known);
+            }
+            chosen.push_back(*it);
+        }
+        labels = chosen;
+    }
+    std::vector<std::string> common_warnings;
+    std::vector<std::string> kept;
+    for (const auto& [label, n]: labels) {
+        if (n < 2) {
+            common_warnings.push_back("condition '" + label + "' has " + std::to_string(n) + " trial and was left out");
+        } else {
+            kept.push_back(label);
+        }
+    }
+    if (kept.size() < 2) throw insufficient_data(rec.source + ": fewer than two conditions with at least two trials");
+    std::vector<std::size_t> trials;
+    std::vector<std::uint32_t> condition;
+    for (std::size_t k = 0; k < rec.trial_count(); ++k) {
+        const auto it = std::find(kept.begin(), kept.end(), rec.stimulus[k]);
+        if (it == kept.end()) continue;
+        trials.push_back(k);
+        condition.push_back(static_cast<std::uint32_t>(it - kept.begin()));
+    }
+    seconds shortest = std::numeric_limits<seconds>::infinity();
+    for (std::size_t k: trials) shortest = std::min(shortest, rec.trial_stop[k] - rec.trial_start[k]);
+    if (q.response.window_stop > shortest + 1e-12) {
+        throw insufficient_data(rec.source + ": the window ends at " + format_number(q.response.window_stop * 1000) +
+                                " ms but the shortest trial lasts " + format_number(shortest * 1000) + " ms");
+    }
+    std::vector<std::size_t> per_condition(kept.size(), 0);
+    for (std::uint32_t c: condition) ++per_condition[c];
+    double stimulus_entropy = 0;
+    for (std::size_t n: per_condition) {
+        const double p = static_cast<double>(n) / static_cast<double>(trials.size());
+        stimulus_entropy -= p * std::log2(p);
+    }
+
+    std::vector<std::vector<std::vector<seconds>>> aligned(units.size());
+    for (std::size_t u = 0; u < units.size(); ++u) aligned[u] = align_to_trials(units[u]->spike_times, rec, trials);
+    const auto windows = windows_of(q);
+    std::vector<stiminfo_record> records(units.size() * windows.size());
+    parallel_for(records.size(), q.threads, [&](std::size_t task) {
+        const std::size_t u = task / windows.size(), w = task % windows.size();
+        stiminfo_record& r = records[task];
+        r.unit = units[u]->id;
+        r.window = windows[w];
+        r.trials = trials.size();
+        for (std::size_t c = 0; c < kept.size(); ++c) r.trials_per_stimulus.emplace_back(kept[c], per_condition[c]);
+        r.stimulus_entropy_bits = stimulus_entropy;
+        r.warnings = common_warnings;
+
+        response_spec spec = q.response;
+        spec.window_start = windows[w].first;
+        spec.window_stop = windows[w].second;
+        const trial_responses resp = code_responses(aligned[u], spec);
+        labelled_responses t{condition, resp.codes, kept.size(), resp.alphabet};
+        r.response_alphabet = resp.alphabet;
+        r.distinct_responses = std::set<word_code>(resp.codes.begin(), resp.codes.end()).size();
+        double spikes = 0;
+        for (count c: resp.spikes) spikes += static_cast<double>(c);
+        r.mean_spikes = spikes / static_cast<double>(trials.size());
+
+        info_settings settings = q.settings;
+        settings.seed = derive_seed(q.settings.seed, {text_hash(r.unit), static_cast<std::uint64_t>(w)});
+        for (info_estimator e: q.estimators) r.info_bits[e] = stimulus_information(t, e, settings);
+
+        // Label-shuffle null of the plug-in value: its mean is the plug-in bias under no information.
+        const double plugin = stimulus_information(t, info_estimator::plugin, settings);
+        random_stream rng(derive_seed(settings.seed, {0x5b0ffULL}));
+        labelled_responses shuffled = t;
+        std::size_t at_least = 0;
+        double sum = 0;
+        for (unsigned i = 0; i < q.null_shuffles; ++i) {
+            shuffle(shuffled.condition, rng);
+            const double v = stimulus_information(shuffled, info_estimator::plugin, settings);
+            sum += v;
+            if (v >= plugin - 1e-12) ++at_least;
+        }
+        r.null_shuffles = q.null_shuffles;
+        if (q.null_shuffles > 0) {
+            r.null_mean_bits = sum / q.null_shuffles;
+            r.null_p_value = (1.0 + static_cast<double>(at_least)) / (1.0 + q.null_shuffles);
+            r.null_subtracted_bits = plugin - r.null_mean_bits;
+        }
+
+        // Bootstrap over trials within condition, used for the spread only: resampling duplicates
+        // trials, and duplicates look like reliable responses, so the bootstrap values carry a bias of
+        // their own that says nothing about the estimator's (notes/methods.md, section 8).
+        const double centre = stimulus_information(t, q.interval_estimator, settings);
+        if (q.bootstrap > 1) {
+            std::vector<std::vector<std::size_t>> members(kept.size());
+            for (std::size_t k = 0; k < t.condition.size(); ++k) members[t.condition[k]].push_back(k);
+            std::vector<double> values;
+            random_stream boot(derive_seed(settings.seed, {0xb007ULL}));
+            labelled_responses sample = t;
+            for (unsigned b = 0; b < q.bootstrap; ++b) {
+                std::size_t i = 0;
+                for (const auto& m: members) {
+                    for (std::size_t j = 0; j < m.size(); ++j, ++i) {
+                        const std::size_t k = m[static_cast<std::size_t>(boot.below(m.size()))];
+                        sample.condition[i] = t.condition[k];
+                        sample.response[i] = t.response[k];
+                    }
+                }
+                values.push_back(stimulus_information(sample, q.interval_estimator, settings));
+            }
+            double mean = 0, ss = 0;
+            for (double v: values) mean += v / static_cast<double>(values.size());
+            for (double v: values) ss += (v - mean) * (v - mean);
+            const double sd = std::sqrt(ss / static_cast<double>(values.size() - 1));
+            r.interval = {centre - 1.96 * sd, centre + 1.96 * sd};
+        }
+
+        for (std::size_t c = 0; c < kept.size(); ++c) {
+            if (static_cast<double>(per_condition[c]) < static_cast<double>(r.distinct_responses)) {
+                r.warnings.push_back("unreliable: " + std::to_string(r.distinct_responses) + " distinct responses but only " +
+                                     std::to_string(per_condition[c]) + " trials in condition '" + kept[c] +
+                                     "' (ratio " + format_fixed(static_cast<double>(per_condition[c]) / static_cast<double>(r.distinct_responses), 2) + ")");
+                break;
+            }
+        }
+        double low = INFINITY, high = -INFINITY;
+        for (const auto& [e, v]: r.info_bits) {
+            if (e == info_estimator::plugin) continue;
+            low = std::min(low, v);
+            high = std::max(high, v);
+        }
+        if (q.bootstrap > 1 && high - low > r.interval.second - r.interval.first) {
+            r.warnings.push_back("the bias-corrected estimators disagree by " + format_fixed(high - low, 3) +
+                                 " bits, more than the width of the 95% interval");
+        }
+        if (q.null_shuffles > 0 && r.null_p_value > 0.05) {
+            r.warnings.push_back("not significant against shuffled labels (p = " + format_fixed(r.null_p_value, 3) + ")");
+        }
+        if (spikes == 0) r.warnings.push_back("no spikes in the window: bits per spike undefined");
+    });
+    return records;
+}
+
+}  // namespace rastrum
