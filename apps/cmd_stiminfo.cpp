@@ -28,10 +28,16 @@ int run_stiminfo(int argc, char** argv) {
                                                    bootstrap_text = std::to_string(defaults.bootstrap),
                                                    splits_text = std::to_string(defaults.settings.splits), seed_text = "1",
                                                    threads_text = "0", json_out, csv_out;
+    std::vector<std::string> population_texts;
+    std::string population_estimator_text = info_estimator_name(defaults.population_estimator);
     bool quiet = false;
     po::options_description options("Options");
     options.add_options()
         ("unit", po::value(&request.units)->composing(), "analyse this unit (repeat for several); every unit when absent")
+        ("population", po::value(&population_texts)->composing(),
+         "ID,ID,...: also analyse the joint response of these units (repeat for several populations)")
+        ("population-estimator", po::value(&population_estimator_text)->default_value(population_estimator_text),
+         "estimator of the population values (joint, sum of singles, synergy, shuffle-corrected)")
         ("window-ms", po::value(&window_text)->required(), "response window A:B in ms after trial start, e.g. 0:500")
         ("code", po::value(&code_text)->required(),
          "response code: count (spikes in the window), word (letters of --bin-ms across the window) or latency "
@@ -55,7 +61,7 @@ int run_stiminfo(int argc, char** argv) {
         ("quiet,q", po::bool_switch(&quiet), "no table and no status lines");
     po::variables_map vm;
     if (!parse_command(argc, argv, "stiminfo",
-                       "FILE --window-ms A:B --code count|word|latency [--bin-ms B] [--binary] [--unit ID]... "
+                       "FILE --window-ms A:B --code count|word|latency [--bin-ms B] [--binary] [--unit ID]... [--population ID,ID,...]... "
                        "[--estimators LIST] [--null-shuffles N] [--slide-ms W:S] [--seed N] [--threads N] [--json OUT] [--csv OUT]",
                        options, {{"file", "FILE", "the recording (HDF5, native layout) with /trials/stimulus labels", &file}},
                        vm)) {
@@ -75,6 +81,8 @@ int run_stiminfo(int argc, char** argv) {
         for (const auto& name: parse_text_list(estimators_text, "--estimators")) request.estimators.push_back(parse_info_estimator(name));
     }
     request.interval_estimator = parse_info_estimator(interval_text);
+    request.population_estimator = parse_info_estimator(population_estimator_text);
+    for (const auto& text: population_texts) request.populations.push_back(parse_text_list(text, "--population"));
     request.null_shuffles = static_cast<unsigned>(parse_whole_number(shuffles_text, "--null-shuffles", 0, 1000000));
     request.bootstrap = static_cast<unsigned>(parse_whole_number(bootstrap_text, "--bootstrap", 0, 1000000));
     request.settings.splits = static_cast<unsigned>(parse_whole_number(splits_text, "--splits", 1, 1000));

@@ -163,3 +163,53 @@ TEST(stimulus_information, names_round_trip_and_unknown_names_are_refused) {
     for (info_estimator e: all_info_estimators) EXPECT_EQ(parse_info_estimator(info_estimator_name(e)), e);
     EXPECT_ANY_THROW(parse_info_estimator("plugin"));
 }
+
+// Conditionally independent binary words: L = 3 bins, bin b of condition s fires with probability
+// p[s][b] independently, so P(word | s) is a product and the exact information follows by enumerating
+// the 8 words (analytic). Over 40 seeds of 25 trials per condition every bias-corrected estimator is
+// closer to the exact value than plug-in on average.
+TEST(stimulus_information, binary_words_bias_corrections_beat_plugin_over_seeds) {
+    const std::vector<std::vector<double>> p{{0.1, 0.5, 0.8}, {0.6, 0.2, 0.3}, {0.4, 0.4, 0.9}};
+    const std::size_t conditions = p.size(), letters = 3, words = 8;
+    const double n_conditions = static_cast<double>(conditions);
+    std::vector<std::vector<double>> pw(conditions, std::vector<double>(words, 1.0));
+    for (std::size_t s = 0; s < conditions; ++s) {
+        for (std::size_t w = 0; w < words; ++w) {
+            for (std::size_t b = 0; b < letters; ++b) {
+                const bool fires = (w >> (letters - 1 - b)) & 1;
+                pw[s][w] *= fires ? p[s][b] : 1 - p[s][b];
+            }
+        }
+    }
+    double exact = 0;
+    for (std::size_t w = 0; w < words; ++w) {
+        double pooled = 0;
+        for (std::size_t s = 0; s < conditions; ++s) pooled += pw[s][w] / n_conditions;
+        for (std::size_t s = 0; s < conditions; ++s) exact += pw[s][w] / n_conditions * std::log2(pw[s][w] / pooled);
+    }
+    std::map<info_estimator, double> error;
+    const int seeds = 40;
+    for (int seed = 1; seed <= seeds; ++seed) {
+        random_stream rng(static_cast<std::uint64_t>(seed));
+        labelled_responses t;
+        t.conditions = conditions;
+        t.alphabet = words;
+        for (std::size_t s = 0; s < conditions; ++s) {
+            for (int k = 0; k < 25; ++k) {
+                word_code w = 0;
+                for (std::size_t b = 0; b < letters; ++b) w = 2 * w + (rng.uniform() < p[s][b] ? 1 : 0);
+                t.condition.push_back(static_cast<std::uint32_t>(s));
+                t.response.push_back(w);
+            }
+        }
+        info_settings settings;
+        settings.seed = static_cast<std::uint64_t>(seed);
+        for (info_estimator e: all_info_estimators) error[e] += (stimulus_information(t, e, settings) - exact) / seeds;
+    }
+    EXPECT_GT(error[info_estimator::plugin], 0.02) << "plug-in is biased upward";
+    for (info_estimator e: all_info_estimators) {
+        if (e == info_estimator::plugin) continue;
+        EXPECT_LT(std::abs(error[e]), error[info_estimator::plugin]) << info_estimator_name(e) << " " << error[e];
+        RecordProperty(info_estimator_name(e), std::to_string(error[e]));
+    }
+}

@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <map>
 #include <set>
 
 namespace rastrum {
@@ -37,6 +38,59 @@ std::vector<std::pair<seconds, seconds>> windows_of(const stiminfo_request& q) {
     return w;
 }
 
+/// Trials resampled with replacement within each condition, the same draw for every unit.
+std::vector<labelled_responses> resample_within_conditions(const std::vector<labelled_responses>& units,
+                                                           const std::vector<std::vector<std::size_t>>& members,
+                                                           random_stream& rng) {
+    std::vector<labelled_responses> out = units;
+    std::size_t i = 0;
+    for (const auto& m: members) {
+        for (std::size_t j = 0; j < m.size(); ++j, ++i) {
+            const std::size_t k = m[static_cast<std::size_t>(rng.below(m.size()))];
+            for (std::size_t u = 0; u < units.size(); ++u) {
+                out[u].condition[i] = units[u].condition[k];
+                out[u].response[i] = units[u].response[k];
+            }
+        }
+    }
+    return out;
+}
+
+std::vector<std::vector<std::size_t>> trials_by_condition(const labelled_responses& t) {
+    std::vector<std::vector<std::size_t>> members(t.conditions);
+    for (std::size_t k = 0; k < t.condition.size(); ++k) members[t.condition[k]].push_back(k);
+    return members;
+}
+
+population_record population_of(const std::vector<labelled_responses>& units, const stiminfo_request& q,
+                                const info_settings& settings) {
+    population_record p;
+    p.values = population_information(units, q.population_estimator, settings, q.within_condition_shuffles);
+    p.low = p.high = p.values;
+    if (q.bootstrap < 2) return p;
+    const auto members = trials_by_condition(units[0]);
+    random_stream rng(derive_seed(settings.seed, {0xb0b0ULL}));
+    std::vector<population_values> boot;
+    for (unsigned b = 0; b < q.bootstrap; ++b) {
+        boot.push_back(population_information(resample_within_conditions(units, members, rng), q.population_estimator,
+                                              settings, q.within_condition_shuffles));
+    }
+    // The same spread-only interval as for single units (see the bootstrap below).
+    auto interval = [&](double population_values::*field) {
+        double mean = 0, ss = 0;
+        for (const auto& v: boot) mean += v.*field / static_cast<double>(boot.size());
+        for (const auto& v: boot) ss += (v.*field - mean) * (v.*field - mean);
+        const double sd = std::sqrt(ss / static_cast<double>(boot.size() - 1));
+        p.low.*field = p.values.*field - 1.96 * sd;
+        p.high.*field = p.values.*field + 1.96 * sd;
+    };
+    for (auto field: {&population_values::joint, &population_values::sum_single, &population_values::synergy,
+                      &population_values::independent, &population_values::shuffle_corrected}) {
+        interval(field);
+    }
+    return p;
+}
+
 }  // namespace
 
 std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_request& q) {
@@ -44,11 +98,18 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
     if (!rec.has_stimulus()) {
         throw usage_error(rec.source + " has no /trials/stimulus labels: stimulus information needs labelled conditions");
     }
-    std::vector<const unit_spikes*> units;
-    if (q.units.empty()) {
-        for (const auto& u: rec.units) units.push_back(&u);
-    } else {
-        for (const auto& id: q.units) units.push_back(&rec.unit(id));
+    // Groups: each single unit asked for (every unit when neither units nor populations are given),
+    // then each population.
+    std::vector<std::vector<const unit_spikes*>> groups;
+    if (q.units.empty() && q.populations.empty()) {
+        for (const auto& u: rec.units) groups.push_back({&u});
+    }
+    for (const auto& id: q.units) groups.push_back({&rec.unit(id)});
+    for (const auto& members: q.populations) {
+        if (members.size() < 2) throw usage_error("--population needs at least two units");
+        std::vector<const unit_spikes*> g;
+        for (const auto& id: members) g.push_back(&rec.unit(id));
+        groups.push_back(g);
     }
     // Conditions: the chosen labels, each keeping at least two trials.
     std::vector<std::pair<std::string, std::size_t>> labels = stimulus_labels(rec);
@@ -97,14 +158,22 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         stimulus_entropy -= p * std::log2(p);
     }
 
-    std::vector<std::vector<std::vector<seconds>>> aligned(units.size());
-    for (std::size_t u = 0; u < units.size(); ++u) aligned[u] = align_to_trials(units[u]->spike_times, rec, trials);
+    std::map<const unit_spikes*, std::vector<std::vector<seconds>>> aligned;
+    for (const auto& g: groups) {
+        for (const unit_spikes* u: g) {
+            if (!aligned.count(u)) aligned[u] = align_to_trials(u->spike_times, rec, trials);
+        }
+    }
     const auto windows = windows_of(q);
-    std::vector<stiminfo_record> records(units.size() * windows.size());
+    std::vector<stiminfo_record> records(groups.size() * windows.size());
     parallel_for(records.size(), q.threads, [&](std::size_t task) {
-        const std::size_t u = task / windows.size(), w = task % windows.size();
+        const auto& group = groups[task / windows.size()];
+        const std::size_t w = task % windows.size();
         stiminfo_record& r = records[task];
-        r.unit = units[u]->id;
+        for (const unit_spikes* u: group) {
+            r.unit += (r.unit.empty() ? "" : "+") + u->id;
+            r.units.push_back(u->id);
+        }
         r.window = windows[w];
         r.trials = trials.size();
         for (std::size_t c = 0; c < kept.size(); ++c) r.trials_per_stimulus.emplace_back(kept[c], per_condition[c]);
@@ -114,16 +183,21 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         response_spec spec = q.response;
         spec.window_start = windows[w].first;
         spec.window_stop = windows[w].second;
-        const trial_responses resp = code_responses(aligned[u], spec);
-        labelled_responses t{condition, resp.codes, kept.size(), resp.alphabet};
-        r.response_alphabet = resp.alphabet;
-        r.distinct_responses = std::set<word_code>(resp.codes.begin(), resp.codes.end()).size();
+        std::vector<labelled_responses> members;
         double spikes = 0;
-        for (count c: resp.spikes) spikes += static_cast<double>(c);
+        for (const unit_spikes* u: group) {
+            const trial_responses resp = code_responses(aligned.at(u), spec);
+            members.push_back({condition, resp.codes, kept.size(), resp.alphabet});
+            for (count c: resp.spikes) spikes += static_cast<double>(c);
+        }
+        const labelled_responses t = members.size() == 1 ? members[0] : joint_responses(members);
+        r.response_alphabet = t.alphabet;
+        r.distinct_responses = std::set<word_code>(t.response.begin(), t.response.end()).size();
         r.mean_spikes = spikes / static_cast<double>(trials.size());
 
         info_settings settings = q.settings;
         settings.seed = derive_seed(q.settings.seed, {text_hash(r.unit), static_cast<std::uint64_t>(w)});
+        if (members.size() > 1) r.population = population_of(members, q, settings);
         for (info_estimator e: q.estimators) r.info_bits[e] = stimulus_information(t, e, settings);
 
         // Label-shuffle null of the plug-in value: its mean is the plug-in bias under no information.
@@ -150,21 +224,12 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         // their own that says nothing about the estimator's (notes/methods.md, section 8).
         const double centre = stimulus_information(t, q.interval_estimator, settings);
         if (q.bootstrap > 1) {
-            std::vector<std::vector<std::size_t>> members(kept.size());
-            for (std::size_t k = 0; k < t.condition.size(); ++k) members[t.condition[k]].push_back(k);
+            const auto by_condition = trials_by_condition(t);
             std::vector<double> values;
             random_stream boot(derive_seed(settings.seed, {0xb007ULL}));
-            labelled_responses sample = t;
             for (unsigned b = 0; b < q.bootstrap; ++b) {
-                std::size_t i = 0;
-                for (const auto& m: members) {
-                    for (std::size_t j = 0; j < m.size(); ++j, ++i) {
-                        const std::size_t k = m[static_cast<std::size_t>(boot.below(m.size()))];
-                        sample.condition[i] = t.condition[k];
-                        sample.response[i] = t.response[k];
-                    }
-                }
-                values.push_back(stimulus_information(sample, q.interval_estimator, settings));
+                values.push_back(stimulus_information(resample_within_conditions({t}, by_condition, boot)[0],
+                                                      q.interval_estimator, settings));
             }
             double mean = 0, ss = 0;
             for (double v: values) mean += v / static_cast<double>(values.size());

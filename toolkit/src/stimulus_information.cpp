@@ -138,17 +138,45 @@ double jackknife_information(const labelled_responses& t) {
     return n * plugin_information(histograms_of(t, {})) - (n - 1) * sum_left_out / n;
 }
 
-// Stratified random subsets: each condition's trials in random order, cut into quarters; halves are
-// pairs of quarters. The plug-in information on the full set, the halves and the quarters of every
-// split is fitted as I(N) = I_inf + a/N + b/N^2, each level weighing alike.
 double extrapolated_information(const labelled_responses& t, const info_settings& settings) {
-    std::vector<std::vector<std::size_t>> members(t.conditions);
-    for (std::size_t k = 0; k < t.condition.size(); ++k) members[t.condition[k]].push_back(k);
-    std::vector<double> x, y, w;
-    const double n = static_cast<double>(t.response.size());
-    x.push_back(1 / n);
-    y.push_back(plugin_information(histograms_of(t, {})));
-    w.push_back(1);
+    return extrapolate_over_trials(
+        t.condition, t.conditions, [&](const std::vector<std::size_t>& use) { return plugin_information(histograms_of(t, use)); },
+        settings);
+}
+
+double extrapolated_entropy(const std::vector<word_code>& responses, const info_settings& settings) {
+    const double n = static_cast<double>(responses.size());
+    std::vector<double> x{1 / n}, y{plugin_of(counts_of(responses))}, w{1};
+    std::vector<word_code> order = responses;
+    for (unsigned split = 0; split < settings.splits; ++split) {
+        random_stream rng(derive_seed(settings.seed, {0xe47ULL, split}));
+        shuffle(order, rng);
+        for (int level = 1; level <= 2; ++level) {
+            const int blocks = 1 << level;
+            for (int b = 0; b < blocks; ++b) {
+                const std::size_t from = order.size() * static_cast<std::size_t>(b) / static_cast<std::size_t>(blocks);
+                const std::size_t to = order.size() * static_cast<std::size_t>(b + 1) / static_cast<std::size_t>(blocks);
+                if (to <= from) continue;
+                x.push_back(1 / static_cast<double>(to - from));
+                y.push_back(plugin_of(counts_of(std::vector<word_code>(order.begin() + static_cast<std::ptrdiff_t>(from),
+                                                                       order.begin() + static_cast<std::ptrdiff_t>(to)))));
+                w.push_back(1.0 / (blocks * settings.splits));
+            }
+        }
+    }
+    return fit_inverse_size(x, y, w).at_infinity;
+}
+
+}  // namespace
+
+// Stratified random subsets: each condition's trials in random order, cut into quarters; halves are
+// pairs of quarters.
+double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std::size_t conditions,
+                               const std::function<double(const std::vector<std::size_t>&)>& value,
+                               const info_settings& settings) {
+    std::vector<std::vector<std::size_t>> members(conditions);
+    for (std::size_t k = 0; k < condition.size(); ++k) members[condition[k]].push_back(k);
+    std::vector<double> x{1 / static_cast<double>(condition.size())}, y{value({})}, w{1};
     for (unsigned split = 0; split < settings.splits; ++split) {
         random_stream rng(derive_seed(settings.seed, {0x9e0ULL, split}));
         std::vector<std::vector<std::size_t>> quarter(4);
@@ -165,8 +193,9 @@ double extrapolated_information(const labelled_responses& t, const info_settings
                                quarter[static_cast<std::size_t>(q)].end());
                 }
                 if (use.empty()) continue;
+                std::sort(use.begin(), use.end());
                 x.push_back(1 / static_cast<double>(use.size()));
-                y.push_back(plugin_information(histograms_of(t, use)));
+                y.push_back(value(use));
                 w.push_back(1.0 / (blocks * settings.splits));
             }
         }
@@ -174,7 +203,28 @@ double extrapolated_information(const labelled_responses& t, const info_settings
     return fit_inverse_size(x, y, w).at_infinity;
 }
 
-}  // namespace
+double response_entropy(const std::vector<word_code>& responses, double alphabet, info_estimator estimator,
+                        const info_settings& settings) {
+    if (responses.empty()) return 0;
+    const std::vector<count> c = counts_of(responses);
+    const count_summary s = summarize_counts(c);
+    switch (estimator) {
+    case info_estimator::plugin: return plugin_entropy(s);
+    case info_estimator::miller_madow: return miller_madow_entropy(s);
+    case info_estimator::jackknife: return jackknife_entropy(s);
+    case info_estimator::panzeri_treves:
+        return plugin_entropy(s) + (relevant_responses(c, alphabet) - 1) / (2 * static_cast<double>(s.samples) * std::log(2.0));
+    case info_estimator::quadratic_extrapolation: return extrapolated_entropy(responses, settings);
+    case info_estimator::nsb: return nsb_entropy(c, alphabet).entropy_bits;
+    }
+    throw internal_error("unknown information estimator");
+}
+
+double conditional_response_entropy(const labelled_responses& trials, info_estimator estimator,
+                                    const info_settings& settings) {
+    return response_entropy(trials.response, trials.alphabet, estimator, settings) -
+           stimulus_information(trials, estimator, settings);
+}
 
 double panzeri_treves_bias(const std::vector<double>& relevant_per_condition, double relevant_pooled, double trials) {
     double sum = 0;

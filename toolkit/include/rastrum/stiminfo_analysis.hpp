@@ -2,6 +2,7 @@
 /// Stimulus information over a recording: for each unit and window, how much its response tells
 /// about which of several labelled conditions was shown, by every chosen estimator, with a
 /// label-shuffle null, a bootstrap interval and bits per spike.
+#include <rastrum/population.hpp>
 #include <rastrum/recording.hpp>
 #include <rastrum/responses.hpp>
 #include <rastrum/stimulus_information.hpp>
@@ -15,7 +16,10 @@
 namespace rastrum {
 
 struct stiminfo_request {
-    std::vector<std::string> units;      // empty: every unit
+    std::vector<std::string> units;      // empty: every unit (unless populations are given)
+    std::vector<std::vector<std::string>> populations;  // joint responses of these units
+    info_estimator population_estimator = info_estimator::quadratic_extrapolation;
+    unsigned within_condition_shuffles = 5;             // for H_sh(R|S)
     std::vector<std::string> stimuli;    // empty: every label
     response_spec response;              // window, code, bin width, binary
     std::optional<std::pair<seconds, seconds>> slide;  // (width, step): windows across response.window
@@ -27,8 +31,17 @@ struct stiminfo_request {
     unsigned threads = 1;
 };
 
+/// Population values and their 95% intervals (bootstrap standard deviation), by the population
+/// estimator (`independent` is always the plug-in product of marginals).
+struct population_record {
+    population_values values;
+    population_values low;
+    population_values high;
+};
+
 struct stiminfo_record {
-    std::string unit;
+    std::string unit;                                        // "u1", or "u1+u2" for a population
+    std::vector<std::string> units;
     std::pair<seconds, seconds> window;                      // [s]
     std::size_t trials = 0;
     std::vector<std::pair<std::string, std::size_t>> trials_per_stimulus;
@@ -41,7 +54,8 @@ struct stiminfo_record {
     double null_p_value = 1;                                 // of the plug-in value
     double null_subtracted_bits = 0;                         // plug-in minus the null mean
     std::pair<double, double> interval{0, 0};                // 95%, of request.interval_estimator
-    double mean_spikes = 0;                                  // per trial in the window
+    double mean_spikes = 0;                                  // per trial in the window (all units)
+    std::optional<population_record> population;
     std::vector<std::string> warnings;
 };
 

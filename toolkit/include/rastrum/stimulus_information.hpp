@@ -6,6 +6,7 @@
 
 #include <array>
 #include <cstdint>
+#include <functional>
 #include <string>
 #include <vector>
 
@@ -39,6 +40,23 @@ struct info_settings {
 
 /// I(S;R) by `estimator`. Expects every condition index below `conditions` and at least one trial.
 double stimulus_information(const labelled_responses& trials, info_estimator estimator, const info_settings& settings);
+
+/// Extrapolates any statistic of a set of trials to infinitely many: `value(use)` on all trials (an
+/// empty `use`) and on random halves and quarters drawn within each condition over `settings.splits`
+/// splits, fitted as v(N) = v_inf + a/N + b/N^2 with each level weighing alike.
+double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std::size_t conditions,
+                               const std::function<double(const std::vector<std::size_t>&)>& value,
+                               const info_settings& settings);
+
+/// Entropy of the responses alone (all conditions pooled) by `estimator`: the estimator applied to a
+/// single histogram (quadratic extrapolation: plug-in values on random halves and quarters of the trials).
+double response_entropy(const std::vector<word_code>& responses, double alphabet, info_estimator estimator,
+                        const info_settings& settings);
+
+/// H(R|S) by `estimator`, defined as response_entropy - stimulus_information, so that every estimator's
+/// conditional entropy and information agree with each other.
+double conditional_response_entropy(const labelled_responses& trials, info_estimator estimator,
+                                    const info_settings& settings);
 
 /// The first-order bias of the plug-in information, [sum_s (R_s - 1) - (R - 1)] / (2 N ln 2), for
 /// given counts of relevant responses R_s (per condition) and R (pooled), N trials

@@ -20,12 +20,35 @@ json per_estimator(const stiminfo_record& r, double divide_by) {
     }
     return j;
 }
+json population_json(const stiminfo_record& r, const stiminfo_request& q) {
+    if (!r.population) return nullptr;
+    const auto& p = *r.population;
+    auto pair = [](double lo, double hi) { return json{lo, hi}; };
+    return {{"estimator", info_estimator_name(q.population_estimator)},
+            {"joint_bits", p.values.joint},
+            {"sum_single_bits", p.values.sum_single},
+            {"synergy_bits", p.values.synergy},
+            {"independent_bits", p.values.independent},
+            {"shuffle_corrected_bits", p.values.shuffle_corrected},
+            {"ci95_bits",
+             {{"joint", pair(p.low.joint, p.high.joint)},
+              {"sum_single", pair(p.low.sum_single, p.high.sum_single)},
+              {"synergy", pair(p.low.synergy, p.high.synergy)},
+              {"independent", pair(p.low.independent, p.high.independent)},
+              {"shuffle_corrected", pair(p.low.shuffle_corrected, p.high.shuffle_corrected)}}}};
+}
+
 }  // namespace
 
 nlohmann::ordered_json stiminfo_parameters_json(const stiminfo_request& q) {
     json estimators = json::array();
     for (info_estimator e: q.estimators) estimators.push_back(info_estimator_name(e));
+    json populations = json::array();
+    for (const auto& p: q.populations) populations.push_back(p);
     return {{"units", q.units},
+            {"populations", populations},
+            {"population_estimator", info_estimator_name(q.population_estimator)},
+            {"within_condition_shuffles", q.within_condition_shuffles},
             {"stimuli", q.stimuli},
             {"window_ms", {q.response.window_start * 1000, q.response.window_stop * 1000}},
             {"code", response_code_name(q.response.code)},
@@ -51,7 +74,7 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
         for (const auto& [label, n]: r.trials_per_stimulus) per_stimulus[label] = n;
         j["records"].push_back(
             {{"unit", r.unit},
-             {"units", {r.unit}},
+             {"units", r.units},
              {"window_ms", {r.window.first * 1000, r.window.second * 1000}},
              {"code", response_code_name(q.response.code)},
              {"bin_ms", bin_ms_of(q)},
@@ -71,7 +94,7 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
              {"info_ci95_estimator", info_estimator_name(q.interval_estimator)},
              {"mean_spikes", r.mean_spikes},
              {"bits_per_spike", per_estimator(r, r.mean_spikes)},
-             {"population", nullptr},
+             {"population", population_json(r, q)},
              {"warnings", r.warnings}});
     }
     return j;
@@ -141,6 +164,21 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
         }
         std::snprintf(line, sizeof line, " [%6.3f, %6.3f]  %8.3f%s\n", r.interval.first, r.interval.second, r.null_p_value,
                       r.warnings.empty() ? "" : "  (!)");
+        s << line;
+    }
+    bool populations = false;
+    for (const auto& r: records) {
+        if (!r.population) continue;
+        if (!populations) {
+            std::snprintf(line, sizeof line, "\nPopulations (%s):\n%-16s %9s %9s %9s %12s %17s\n",
+                          info_estimator_name(q.population_estimator), "units", "joint", "sum", "synergy", "independent",
+                          "shuffle-corrected");
+            s << line;
+        }
+        populations = true;
+        const auto& v = r.population->values;
+        std::snprintf(line, sizeof line, "%-16s %9.4f %9.4f %9.4f %12.4f %17.4f\n", r.unit.c_str(), v.joint, v.sum_single,
+                      v.synergy, v.independent, v.shuffle_corrected);
         s << line;
     }
     bool any = false;

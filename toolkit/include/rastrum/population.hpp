@@ -1,0 +1,41 @@
+#pragma once
+/// Information carried by the joint response of several units, and how it compares with the units
+/// taken one at a time (synergy or redundancy), with conditionally independent units, and with the
+/// shuffle-corrected estimate of Montemurro, Senatore & Panzeri 2007 (Neural Comput. 19:2913) and
+/// Panzeri, Senatore, Montemurro & Petersen 2007 (J. Neurophysiol. 98:1064).
+#include <rastrum/stimulus_information.hpp>
+
+#include <cstdint>
+#include <vector>
+
+namespace rastrum {
+
+/// One code per trial from the units' codes in mixed radix (unit 0 most significant), over the same
+/// trials and conditions. Throws insufficient_data when the joint alphabet exceeds 2^64 codes.
+labelled_responses joint_responses(const std::vector<labelled_responses>& units);
+
+/// The units' responses shuffled across the trials of each condition, each unit on its own:
+/// the noise correlations between units are destroyed, each unit's conditional distribution kept.
+std::vector<labelled_responses> shuffled_within_conditions(const std::vector<labelled_responses>& units,
+                                                           std::uint64_t seed);
+
+/// I(S;R) if the units were conditionally independent: the plug-in information of the product of the
+/// units' empirical conditional distributions, summed exactly over its support, over the trials in
+/// `use` (all when empty). Throws insufficient_data when that support exceeds 10^6 joint responses.
+double independent_information(const std::vector<labelled_responses>& units, const std::vector<std::size_t>& use = {});
+
+struct population_values {
+    double joint = 0;              // I(S; R1..Rn)
+    double sum_single = 0;         // sum_c I(S; R_c)
+    double synergy = 0;            // joint - sum_single (negative: redundancy)
+    double independent = 0;        // independent_information, extrapolated to infinite trials
+    double shuffle_corrected = 0;  // I_sh = H(R) - H_ind(R|S) + H_sh(R|S) - H(R|S)
+};
+
+/// Every value but `independent` by `estimator`; `independent` is the plug-in product of marginals
+/// extrapolated in 1/N like quadratic-extrapolation, because its plug-in value is biased upward. H_ind(R|S) is the sum of the units' conditional
+/// entropies; H_sh(R|S) is averaged over `shuffles` within-condition shuffles.
+population_values population_information(const std::vector<labelled_responses>& units, info_estimator estimator,
+                                         const info_settings& settings, unsigned shuffles);
+
+}  // namespace rastrum
