@@ -33,7 +33,8 @@ int run_stiminfo(int argc, char** argv) {
     bool quiet = false;
     po::options_description options("Options");
     options.add_options()
-        ("unit", po::value(&request.units)->composing(), "analyse this unit (repeat for several); every unit when absent")
+        ("unit", po::value(&request.units)->composing(),
+         "analyse this unit (repeat for several); every unit when neither --unit nor --population is given")
         ("population", po::value(&population_texts)->composing(),
          "ID,ID,...: also analyse the joint response of these units (repeat for several populations)")
         ("population-estimator", po::value(&population_estimator_text)->default_value(population_estimator_text),
@@ -52,7 +53,7 @@ int run_stiminfo(int argc, char** argv) {
         ("bootstrap", po::value(&bootstrap_text)->default_value(bootstrap_text),
          "resamples of trials within condition for the 95% interval (0 or 1: none)")
         ("interval-estimator", po::value(&interval_text)->default_value(interval_text), "the estimator the interval is for")
-        ("slide-ms", po::value(&slide_text), "W:S: also slide a window of W ms in steps of S ms across --window-ms (one record each)")
+        ("slide-ms", po::value(&slide_text), "W:S: instead of one window, windows of W ms in steps of S ms across --window-ms (the time course; one record each, each with its own null and interval)")
         ("splits", po::value(&splits_text)->default_value(splits_text), "quadratic-extrapolation: random stratified splits")
         ("seed", po::value(&seed_text)->default_value(seed_text), "seed of shuffles, resamples and splits (a whole number)")
         ("threads", po::value(&threads_text)->default_value(threads_text), "worker threads (0: one per core); results do not depend on it")

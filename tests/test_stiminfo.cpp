@@ -126,3 +126,14 @@ TEST(stiminfo, bad_requests_are_refused) {
     unlabelled.session.trials = 10;
     EXPECT_THROW(run_stiminfo(make_frozen_bins(unlabelled).rec, count_request(0, 0)), usage_error);
 }
+
+TEST(stiminfo, a_condition_with_one_trial_is_left_out_and_named) {
+    auto rec = poisson_conditions({1, 4, 8}, 2).rec;
+    rec.stimulus[0] = "lonely";
+    const auto records = run_stiminfo(rec, count_request(0, 0));
+    ASSERT_EQ(records.size(), 1u);
+    EXPECT_EQ(records[0].trials, rec.trial_count() - 1);
+    EXPECT_EQ(records[0].trials_per_stimulus.size(), 3u);
+    ASSERT_FALSE(records[0].warnings.empty());
+    EXPECT_NE(records[0].warnings[0].find("'lonely'"), std::string::npos) << records[0].warnings[0];
+}
