@@ -260,7 +260,35 @@ TEST(cli, stiminfo_writes_stable_json_and_refuses_bad_labels_and_windows) {
     EXPECT_NE(long_window.err.find("shortest trial"), std::string::npos) << long_window.err;
     EXPECT_EQ(run_rastrum("stiminfo " + rec + " --window-ms 500:100 --code count --json " + folder + "/x.json").exit_code, 2);
     EXPECT_EQ(run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code rate --json " + folder + "/x.json").exit_code, 2);
-    EXPECT_EQ(run_rastrum("stiminfo " + small_recording() + " --window-ms 0:500 --code count --json " + folder + "/x.json").exit_code, 2)
-        << "a recording without labels";
+    const auto unlabelled = run_rastrum("stiminfo " + small_recording() + " --window-ms 0:500 --code count --json " + folder + "/x.json");
+    EXPECT_EQ(unlabelled.exit_code, 3) << "a recording without labels is an input problem";
+    EXPECT_NE(unlabelled.err.find("/trials/stimulus"), std::string::npos) << unlabelled.err;
+    const auto repeated = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --stimuli a,b,a --json " + folder + "/x.json");
+    EXPECT_EQ(repeated.exit_code, 2);
+    EXPECT_NE(repeated.err.find("'a' is named twice"), std::string::npos) << repeated.err;
     EXPECT_FALSE(file_exists(folder + "/x.json"));
+
+    // Without resamples or shuffles the table says so instead of printing [0, 0] and p = 1.
+    const auto bare = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --bootstrap 0 --null-shuffles 0");
+    ASSERT_EQ(bare.exit_code, 0) << bare.err;
+    EXPECT_NE(bare.out.find("none"), std::string::npos) << bare.out;
+    EXPECT_NE(bare.out.find("n/a"), std::string::npos) << bare.out;
+    EXPECT_EQ(bare.out.find("[0.000, 0.000]"), std::string::npos) << bare.out;
+    for (const char* name: {"miller-madow", "panzeri-treves", "quadratic-extrapolation"}) {
+        EXPECT_NE(bare.out.find(name), std::string::npos) << "column headers are not cut short: " << name;
+    }
+
+    // A population alone brings its members alone too, and its intervals reach the table.
+    const std::string pair = folder + "/pair.h5";
+    ASSERT_EQ(run_rastrum("synth conditions --out " + pair + " --duration-s 0.5 --means 2,4,6,9 --means 3,3,5,5").exit_code, 0);
+    const auto population = run_rastrum("stiminfo " + pair + " --window-ms 0:500 --code count --population u1,u2 --null-shuffles 20 "
+                                        "--bootstrap 20 --json " + folder + "/p.json");
+    ASSERT_EQ(population.exit_code, 0) << population.err;
+    const json p = json::parse(read_file(folder + "/p.json"));
+    ASSERT_EQ(p["records"].size(), 3u);
+    EXPECT_EQ(p["records"][0]["unit"], "u1");
+    EXPECT_EQ(p["records"][1]["unit"], "u2");
+    EXPECT_EQ(p["records"][2]["unit"], "u1+u2");
+    EXPECT_EQ(p["records"][2]["population"]["ci95_bits"]["synergy"].size(), 2u);
+    EXPECT_EQ(run_rastrum("stiminfo " + pair + " --window-ms 0:500 --code count --population u1,u1").exit_code, 2);
 }

@@ -1,10 +1,12 @@
 #include <rastrum/errors.hpp>
+#include <rastrum/binning.hpp>
 #include <rastrum/format.hpp>
 #include <rastrum/parallel.hpp>
 #include <rastrum/random.hpp>
 #include <rastrum/stiminfo_analysis.hpp>
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <limits>
 #include <map>
@@ -62,12 +64,43 @@ std::vector<std::vector<std::size_t>> trials_by_condition(const labelled_respons
     return members;
 }
 
+const std::array<double population_values::*, 5> population_fields{
+    &population_values::joint, &population_values::sum_single, &population_values::synergy,
+    &population_values::independent, &population_values::shuffle_corrected};
+
+/// The estimators whose values bound the interval: every bias-corrected one asked for, and the one the
+/// interval is centred on (even when that is plug-in).
+std::vector<info_estimator> envelope_estimators(const std::vector<info_estimator>& asked, info_estimator centre) {
+    std::vector<info_estimator> out{centre};
+    for (info_estimator e: asked) {
+        if (e != info_estimator::plugin && e != centre) out.push_back(e);
+    }
+    return out;
+}
+
+double standard_deviation(const std::vector<double>& values) {
+    double mean = 0, ss = 0;
+    for (double v: values) mean += v / static_cast<double>(values.size());
+    for (double v: values) ss += (v - mean) * (v - mean);
+    return std::sqrt(ss / static_cast<double>(values.size() - 1));
+}
+
 population_record population_of(const std::vector<labelled_responses>& units, const stiminfo_request& q,
                                 const info_settings& settings) {
     population_record p;
     p.values = population_information(units, q.population_estimator, settings, q.within_condition_shuffles);
     p.low = p.high = p.values;
     if (q.bootstrap < 2) return p;
+    // The same interval as for single units (see run_stiminfo): the envelope of the bias-corrected
+    // estimators, widened on each side by 1.96 bootstrap standard deviations of the population estimator.
+    for (info_estimator e: envelope_estimators(q.estimators, q.population_estimator)) {
+        if (e == q.population_estimator) continue;
+        const population_values v = population_information(units, e, settings, q.within_condition_shuffles);
+        for (auto field: population_fields) {
+            p.low.*field = std::min(p.low.*field, v.*field);
+            p.high.*field = std::max(p.high.*field, v.*field);
+        }
+    }
     const auto members = trials_by_condition(units[0]);
     random_stream rng(derive_seed(settings.seed, {0xb0b0ULL}));
     std::vector<population_values> boot;
@@ -75,20 +108,40 @@ population_record population_of(const std::vector<labelled_responses>& units, co
         boot.push_back(population_information(resample_within_conditions(units, members, rng), q.population_estimator,
                                               settings, q.within_condition_shuffles));
     }
-    // The same spread-only interval as for single units (see the bootstrap below).
-    auto interval = [&](double population_values::*field) {
-        double mean = 0, ss = 0;
-        for (const auto& v: boot) mean += v.*field / static_cast<double>(boot.size());
-        for (const auto& v: boot) ss += (v.*field - mean) * (v.*field - mean);
-        const double sd = std::sqrt(ss / static_cast<double>(boot.size() - 1));
-        p.low.*field = p.values.*field - 1.96 * sd;
-        p.high.*field = p.values.*field + 1.96 * sd;
-    };
-    for (auto field: {&population_values::joint, &population_values::sum_single, &population_values::synergy,
-                      &population_values::independent, &population_values::shuffle_corrected}) {
-        interval(field);
+    for (auto field: population_fields) {
+        std::vector<double> values;
+        for (const auto& v: boot) values.push_back(v.*field);
+        const double sd = standard_deviation(values);
+        p.low.*field -= 1.96 * sd;
+        p.high.*field += 1.96 * sd;
     }
     return p;
+}
+
+/// Highest minus lowest bias-corrected estimate (0 when fewer than two were asked for).
+double spread_of_corrected(const std::map<info_estimator, double>& info_bits) {
+    double low = INFINITY, high = -INFINITY;
+    for (const auto& [e, v]: info_bits) {
+        if (e == info_estimator::plugin) continue;
+        low = std::min(low, v);
+        high = std::max(high, v);
+    }
+    return high > low ? high - low : 0.0;
+}
+
+/// "a", "b" and "c" as "'a', 'b', 'c'", sorted, for messages.
+std::string sorted_labels(std::vector<std::string> labels) {
+    std::sort(labels.begin(), labels.end());
+    std::string out;
+    for (const auto& l: labels) out += (out.empty() ? "'" : ", '") + l + "'";
+    return out;
+}
+
+void refuse_repeats(const std::vector<std::string>& names, const std::string& option) {
+    std::set<std::string> seen;
+    for (const auto& n: names) {
+        if (!seen.insert(n).second) throw usage_error(option + ": '" + n + "' is named twice");
+    }
 }
 
 }  // namespace
@@ -96,8 +149,11 @@ population_record population_of(const std::vector<labelled_responses>& units, co
 std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_request& q) {
     check_stiminfo_request(q);
     if (!rec.has_stimulus()) {
-        throw usage_error(rec.source + " has no /trials/stimulus labels: stimulus information needs labelled conditions");
+        throw input_error(rec.source, "/trials/stimulus", "a stimulus label for every trial (stimulus information needs labelled conditions)",
+                          "no labels");
     }
+    refuse_repeats(q.units, "--unit");
+    refuse_repeats(q.stimuli, "--stimuli");
     // Groups: each single unit asked for (every unit when neither units nor populations are given),
     // then each population.
     std::vector<std::vector<const unit_spikes*>> groups;
@@ -105,8 +161,17 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         for (const auto& u: rec.units) groups.push_back({&u});
     }
     for (const auto& id: q.units) groups.push_back({&rec.unit(id)});
+    // A population's members are analysed alone too, so its synergy can be read against them.
     for (const auto& members: q.populations) {
         if (members.size() < 2) throw usage_error("--population needs at least two units");
+        refuse_repeats(members, "--population");
+        for (const auto& id: members) {
+            const unit_spikes* u = &rec.unit(id);
+            const bool listed = std::any_of(groups.begin(), groups.end(), [&](const auto& g) { return g.size() == 1 && g[0] == u; });
+            if (!listed) groups.push_back({u});
+        }
+    }
+    for (const auto& members: q.populations) {
         std::vector<const unit_spikes*> g;
         for (const auto& id: members) g.push_back(&rec.unit(id));
         groups.push_back(g);
@@ -118,9 +183,9 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         for (const auto& name: q.stimuli) {
             auto it = std::find_if(labels.begin(), labels.end(), [&](const auto& l) { return l.first == name; });
             if (it == labels.end()) {
-                std::string known;
-                for (const auto& l: labels) known += (known.empty() ? "" : ", ") + l.first;
-                throw usage_error("--stimuli: no trial is labelled '" + name + "'; labels: " + known);
+                std::vector<std::string> known;
+                for (const auto& l: labels) known.push_back(l.first);
+                throw usage_error("--stimuli: no trial is labelled '" + name + "'; labels: " + sorted_labels(known));
             }
             chosen.push_back(*it);
         }
@@ -219,10 +284,24 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
             r.null_subtracted_bits = plugin - r.null_mean_bits;
         }
 
-        // Bootstrap over trials within condition, used for the spread only: resampling duplicates
-        // trials, and duplicates look like reliable responses, so the bootstrap values carry a bias of
-        // their own that says nothing about the estimator's (notes/methods.md, section 8).
+        // The interval spans the envelope of the bias-corrected estimates (and the null-subtracted
+        // plug-in value), widened on each side by 1.96 bootstrap standard deviations of the interval
+        // estimator. The bootstrap alone is centred on one estimator's bias: with few trials per
+        // distinct response that bias exceeds the sampling spread and a spread-only interval is
+        // confidently wrong (notes/methods.md, section 8). The bootstrap is used for the spread only:
+        // resampling duplicates trials, and duplicates look like reliable responses, so the bootstrap
+        // values carry a bias of their own that says nothing about the estimator's.
         const double centre = stimulus_information(t, q.interval_estimator, settings);
+        double envelope_low = centre, envelope_high = centre;
+        for (info_estimator e: envelope_estimators(q.estimators, q.interval_estimator)) {
+            const double v = e == q.interval_estimator ? centre : r.info_bits.at(e);
+            envelope_low = std::min(envelope_low, v);
+            envelope_high = std::max(envelope_high, v);
+        }
+        if (q.null_shuffles > 0) {
+            envelope_low = std::min(envelope_low, r.null_subtracted_bits);
+            envelope_high = std::max(envelope_high, r.null_subtracted_bits);
+        }
         if (q.bootstrap > 1) {
             const auto by_condition = trials_by_condition(t);
             std::vector<double> values;
@@ -231,33 +310,46 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
                 values.push_back(stimulus_information(resample_within_conditions({t}, by_condition, boot)[0],
                                                       q.interval_estimator, settings));
             }
-            double mean = 0, ss = 0;
-            for (double v: values) mean += v / static_cast<double>(values.size());
-            for (double v: values) ss += (v - mean) * (v - mean);
-            const double sd = std::sqrt(ss / static_cast<double>(values.size() - 1));
-            r.interval = {centre - 1.96 * sd, centre + 1.96 * sd};
+            const double sd = standard_deviation(values);
+            r.interval = {envelope_low - 1.96 * sd, envelope_high + 1.96 * sd};
         }
 
-        for (std::size_t c = 0; c < kept.size(); ++c) {
-            if (static_cast<double>(per_condition[c]) < static_cast<double>(r.distinct_responses)) {
-                r.warnings.push_back("unreliable: " + std::to_string(r.distinct_responses) + " distinct responses but only " +
-                                     std::to_string(per_condition[c]) + " trials in condition '" + kept[c] +
-                                     "' (ratio " + format_fixed(static_cast<double>(per_condition[c]) / static_cast<double>(r.distinct_responses), 2) + ")");
-                break;
+        const std::size_t fewest = *std::min_element(per_condition.begin(), per_condition.end());
+        r.few_trials = fewest < r.distinct_responses;
+        if (r.few_trials) {
+            const auto c = static_cast<std::size_t>(std::min_element(per_condition.begin(), per_condition.end()) - per_condition.begin());
+            r.warnings.push_back("few trials for this code: " + std::to_string(r.distinct_responses) +
+                                 " distinct responses, but condition '" + kept[c] + "' has only " + std::to_string(fewest) +
+                                 " trials; the estimators disagree by " + format_fixed(spread_of_corrected(r.info_bits), 3) +
+                                 " bits and the interval spans them");
+        }
+        if (q.response.code != response_code::spike_count) {
+            const double letters = (r.window.second - r.window.first) / q.response.bin_width;
+            if (std::fabs(letters - std::round(letters)) > 1e-6) {
+                const double coded = static_cast<double>(whole_bins(r.window.second - r.window.first, q.response.bin_width)) *
+                                     q.response.bin_width;
+                r.warnings.push_back("the window is not a whole number of " + format_number(q.response.bin_width * 1000) +
+                                     " ms bins: spikes in its last " +
+                                     format_number((r.window.second - r.window.first - coded) * 1000) + " ms are not coded");
             }
         }
-        double low = INFINITY, high = -INFINITY;
-        for (const auto& [e, v]: r.info_bits) {
-            if (e == info_estimator::plugin) continue;
-            low = std::min(low, v);
-            high = std::max(high, v);
+        const auto nsb = r.info_bits.find(info_estimator::nsb);
+        if (nsb != r.info_bits.end() && nsb->second < -0.02) {
+            r.warnings.push_back("nsb is " + format_fixed(nsb->second, 3) +
+                                 " bits, below zero: its prior does not suit these responses; read the other estimators");
         }
-        if (q.bootstrap > 1 && high - low > r.interval.second - r.interval.first) {
-            r.warnings.push_back("the bias-corrected estimators disagree by " + format_fixed(high - low, 3) +
-                                 " bits, more than the width of the 95% interval");
+        const double spread = spread_of_corrected(r.info_bits);
+        if (!r.few_trials && spread > 0.1) {
+            r.warnings.push_back("the bias-corrected estimators disagree by " + format_fixed(spread, 3) +
+                                 " bits; the interval spans them");
         }
         if (q.null_shuffles > 0 && r.null_p_value > 0.05) {
             r.warnings.push_back("not significant against shuffled labels (p = " + format_fixed(r.null_p_value, 3) + ")");
+        }
+        if (q.null_shuffles > 0 && q.bootstrap > 1 && (r.null_p_value <= 0.05) != (r.interval.first > 0)) {
+            r.warnings.push_back(r.null_p_value <= 0.05
+                                     ? "significant against shuffled labels, but the interval reaches 0: the amount is uncertain"
+                                     : "the interval excludes 0, but the shuffle test does not reject 0: treat as not shown");
         }
         if (spikes == 0) r.warnings.push_back("no spikes in the window: bits per spike undefined");
     });

@@ -31,8 +31,9 @@ struct stiminfo_request {
     unsigned threads = 1;
 };
 
-/// Population values and their 95% intervals (bootstrap standard deviation), by the population
-/// estimator (`independent` is always the plug-in product of marginals).
+/// Population values by the population estimator (`independent` is always the extrapolated plug-in
+/// product of marginals) and their 95% intervals: the envelope of the values by every bias-corrected
+/// estimator asked for, widened by 1.96 bootstrap standard deviations of the population estimator.
 struct population_record {
     population_values values;
     population_values low;
@@ -53,7 +54,10 @@ struct stiminfo_record {
     double null_mean_bits = 0;                               // plug-in under shuffled labels
     double null_p_value = 1;                                 // of the plug-in value
     double null_subtracted_bits = 0;                         // plug-in minus the null mean
-    std::pair<double, double> interval{0, 0};                // 95%, of request.interval_estimator
+    /// 95%: the envelope of the bias-corrected estimates and the null-subtracted plug-in value, widened
+    /// on each side by 1.96 bootstrap standard deviations of request.interval_estimator.
+    std::pair<double, double> interval{0, 0};
+    bool few_trials = false;                                 // fewer trials in some condition than distinct responses
     double mean_spikes = 0;                                  // per trial in the window (all units)
     std::optional<population_record> population;
     std::vector<std::string> warnings;

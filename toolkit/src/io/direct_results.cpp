@@ -1,3 +1,4 @@
+#include <rastrum/csv.hpp>
 #include <rastrum/direct_results.hpp>
 
 #include <cmath>
@@ -92,24 +93,6 @@ nlohmann::ordered_json direct_json(const std::vector<direct_record>& records, co
     for (const auto& r: records) j["records"].push_back(record_json(r));
     return j;
 }
-
-namespace {
-std::string csv_number(double x) {
-    if (!std::isfinite(x)) return "";
-    char text[40];
-    std::snprintf(text, sizeof text, "%.10g", x);
-    return text;
-}
-std::string csv_text(const std::string& s) {
-    if (s.find_first_of(",\"\n") == std::string::npos) return s;
-    std::string q = "\"";
-    for (char c: s) {
-        if (c == '"') q += '"';
-        q += c;
-    }
-    return q + "\"";
-}
-}  // namespace
 
 std::string direct_csv(const std::vector<direct_record>& records) {
     std::ostringstream s;

@@ -1,7 +1,11 @@
+#include <rastrum/csv.hpp>
 #include <rastrum/stiminfo_results.hpp>
+
+#include <algorithm>
 
 #include <cmath>
 #include <cstdio>
+#include <set>
 #include <sstream>
 
 namespace rastrum {
@@ -30,7 +34,7 @@ json population_json(const stiminfo_record& r, const stiminfo_request& q) {
             {"synergy_bits", p.values.synergy},
             {"independent_bits", p.values.independent},
             {"shuffle_corrected_bits", p.values.shuffle_corrected},
-            {"ci95_bits",
+            {"ci95_bits", q.bootstrap < 2 ? json(nullptr) : json
              {{"joint", pair(p.low.joint, p.high.joint)},
               {"sum_single", pair(p.low.sum_single, p.high.sum_single)},
               {"synergy", pair(p.low.synergy, p.high.synergy)},
@@ -92,6 +96,11 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
              {"info_null_subtracted_bits", q.null_shuffles == 0 ? json(nullptr) : json(r.null_subtracted_bits)},
              {"info_ci95_bits", q.bootstrap > 1 ? json{r.interval.first, r.interval.second} : json(nullptr)},
              {"info_ci95_estimator", info_estimator_name(q.interval_estimator)},
+             {"info_ci95_method", q.bootstrap > 1 ? json("envelope of the bias-corrected estimates and the null-subtracted "
+                                                         "plug-in value, widened by 1.96 bootstrap standard deviations of " +
+                                                         std::string(info_estimator_name(q.interval_estimator)))
+                                                  : json(nullptr)},
+             {"few_trials", r.few_trials},
              {"mean_spikes", r.mean_spikes},
              {"bits_per_spike", per_estimator(r, r.mean_spikes)},
              {"population", population_json(r, q)},
@@ -102,40 +111,57 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
 
 std::string stiminfo_csv(const std::vector<stiminfo_record>& records, const stiminfo_request& q) {
     std::ostringstream s;
+    // Record-level columns (unit ... info_ci95_*, population_*) repeat on each estimator's row: tidy form.
     s << "unit,window_start_ms,window_stop_ms,code,bin_ms,trials,stimuli,stimulus_entropy_bits,response_alphabet,"
          "distinct_responses,estimator,info_bits,bits_per_spike,null_mean_bits,null_p_value,info_null_subtracted_bits,"
-         "info_ci95_low_bits,info_ci95_high_bits,warnings\n";
-    char number[40];
-    auto num = [&](double x) {
-        if (!std::isfinite(x)) return std::string();
-        std::snprintf(number, sizeof number, "%.10g", x);
-        return std::string(number);
-    };
+         "info_ci95_low_bits,info_ci95_high_bits,info_ci95_bootstrap_estimator,few_trials";
+    for (const char* v: {"joint", "sum_single", "synergy", "independent", "shuffle_corrected"}) {
+        s << ",population_" << v << "_bits,population_" << v << "_ci95_low_bits,population_" << v << "_ci95_high_bits";
+    }
+    s << ",population_estimator,warnings\n";
+    const bool nulls = q.null_shuffles > 0, intervals = q.bootstrap > 1;
+    auto maybe = [](bool present, double x) { return present ? csv_number(x) : std::string(); };
     for (const auto& r: records) {
         std::string warnings;
         for (const auto& w: r.warnings) warnings += (warnings.empty() ? "" : "; ") + w;
-        std::string quoted = "\"";
-        for (char c: warnings) quoted += c == '"' ? std::string("\"\"") : std::string(1, c);
-        quoted += "\"";
+        std::ostringstream population;
+        for (auto field: {&population_values::joint, &population_values::sum_single, &population_values::synergy,
+                          &population_values::independent, &population_values::shuffle_corrected}) {
+            const bool p = r.population.has_value();
+            population << ',' << maybe(p, p ? r.population->values.*field : 0) << ','
+                       << maybe(p && intervals, p ? r.population->low.*field : 0) << ','
+                       << maybe(p && intervals, p ? r.population->high.*field : 0);
+        }
+        population << ',' << (r.population ? info_estimator_name(q.population_estimator) : "");
         for (const auto& [e, v]: r.info_bits) {
-            s << r.unit << ',' << num(r.window.first * 1000) << ',' << num(r.window.second * 1000) << ','
-              << response_code_name(q.response.code) << ','
-              << (q.response.code == response_code::spike_count ? "" : num(q.response.bin_width * 1000)) << ','
-              << r.trials << ',' << r.trials_per_stimulus.size() << ',' << num(r.stimulus_entropy_bits) << ','
-              << num(r.response_alphabet) << ',' << r.distinct_responses << ',' << info_estimator_name(e) << ','
-              << num(v) << ',' << (r.mean_spikes > 0 ? num(v / r.mean_spikes) : "") << ','
-              << (q.null_shuffles ? num(r.null_mean_bits) : "") << ',' << (q.null_shuffles ? num(r.null_p_value) : "")
-              << ',' << (q.null_shuffles ? num(r.null_subtracted_bits) : "") << ','
-              << (q.bootstrap > 1 ? num(r.interval.first) : "") << ',' << (q.bootstrap > 1 ? num(r.interval.second) : "")
-              << ',' << quoted << '\n';
+            s << csv_text(r.unit) << ',' << csv_number(r.window.first * 1000) << ',' << csv_number(r.window.second * 1000)
+              << ',' << response_code_name(q.response.code) << ','
+              << (q.response.code == response_code::spike_count ? "" : csv_number(q.response.bin_width * 1000)) << ','
+              << r.trials << ',' << r.trials_per_stimulus.size() << ',' << csv_number(r.stimulus_entropy_bits) << ','
+              << csv_number(r.response_alphabet) << ',' << r.distinct_responses << ',' << info_estimator_name(e) << ','
+              << csv_number(v) << ',' << (r.mean_spikes > 0 ? csv_number(v / r.mean_spikes) : "") << ','
+              << maybe(nulls, r.null_mean_bits) << ',' << maybe(nulls, r.null_p_value) << ','
+              << maybe(nulls, r.null_subtracted_bits) << ',' << maybe(intervals, r.interval.first) << ','
+              << maybe(intervals, r.interval.second) << ',' << (intervals ? info_estimator_name(q.interval_estimator) : "")
+              << ',' << (r.few_trials ? "true" : "false") << population.str() << ',' << csv_text(warnings) << '\n';
         }
     }
     return s.str();
 }
 
+namespace {
+std::string interval_text(bool present, double low, double high) {
+    if (!present) return "none";
+    char text[64];
+    std::snprintf(text, sizeof text, "[%.3f, %.3f]", low, high);
+    return text;
+}
+}  // namespace
+
 std::string stiminfo_table(const std::vector<stiminfo_record>& records, const stiminfo_request& q) {
     std::ostringstream s;
     char line[512];
+    const bool nulls = q.null_shuffles > 0, intervals = q.bootstrap > 1;
     s << "Stimulus information: bits about which condition was shown, " << response_code_name(q.response.code)
       << " code";
     if (q.response.code != response_code::spike_count) {
@@ -144,25 +170,41 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
     }
     s << "\n";
     if (!records.empty()) {
-        std::snprintf(line, sizeof line, "%zu trials, %zu conditions, stimulus entropy %.3f bits; interval: %s, bootstrap %u\n",
-                      records[0].trials, records[0].trials_per_stimulus.size(), records[0].stimulus_entropy_bits,
-                      info_estimator_name(q.interval_estimator), q.bootstrap);
+        std::snprintf(line, sizeof line, "%zu trials, %zu conditions, stimulus entropy %.3f bits\n", records[0].trials,
+                      records[0].trials_per_stimulus.size(), records[0].stimulus_entropy_bits);
         s << line;
     }
-    s << "\n" << "unit       window ms   ";
+    if (intervals) {
+        s << "95% interval: from the lowest to the highest bias-corrected estimate" << (nulls ? " (null-subtracted included)" : "")
+          << ",\nwidened by 1.96 bootstrap standard deviations of " << info_estimator_name(q.interval_estimator) << " ("
+          << q.bootstrap << " resamples within condition)\n";
+    }
+    std::size_t unit_width = 10;
+    for (const auto& r: records) unit_width = std::max(unit_width, r.unit.size());
+    std::vector<int> widths;
+    s << "\n" << std::string(unit_width - 4, ' ') << "unit  window ms";
     for (info_estimator e: q.estimators) {
-        std::snprintf(line, sizeof line, "%11.11s ", info_estimator_name(e));
+        widths.push_back(std::max(9, static_cast<int>(std::string(info_estimator_name(e)).size())));
+        std::snprintf(line, sizeof line, " %*s", widths.back(), info_estimator_name(e));
         s << line;
     }
-    s << "   95% interval    p(shuffle)\n";
+    std::snprintf(line, sizeof line, " %10s  %-16s %10s\n", "null-sub", "95% interval", "p(shuffle)");
+    s << line;
     for (const auto& r: records) {
-        std::snprintf(line, sizeof line, "%-10s %5g-%-5g ", r.unit.c_str(), r.window.first * 1000, r.window.second * 1000);
+        std::snprintf(line, sizeof line, "%*s %5g-%-5g", static_cast<int>(unit_width), r.unit.c_str(), r.window.first * 1000,
+                      r.window.second * 1000);
         s << line;
-        for (info_estimator e: q.estimators) {
-            std::snprintf(line, sizeof line, "%11.4f ", r.info_bits.at(e));
+        for (std::size_t i = 0; i < q.estimators.size(); ++i) {
+            std::snprintf(line, sizeof line, " %*.4f", widths[i], r.info_bits.at(q.estimators[i]));
             s << line;
         }
-        std::snprintf(line, sizeof line, " [%6.3f, %6.3f]  %8.3f%s\n", r.interval.first, r.interval.second, r.null_p_value,
+        char p_value[16] = "n/a", subtracted[16] = "n/a";
+        if (nulls) {
+            std::snprintf(p_value, sizeof p_value, "%.3f", r.null_p_value);
+            std::snprintf(subtracted, sizeof subtracted, "%.4f", r.null_subtracted_bits);
+        }
+        std::snprintf(line, sizeof line, " %10s  %-16s %10s%s\n", subtracted,
+                      interval_text(intervals, r.interval.first, r.interval.second).c_str(), p_value,
                       r.warnings.empty() ? "" : "  (!)");
         s << line;
     }
@@ -170,27 +212,63 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
     for (const auto& r: records) {
         if (!r.population) continue;
         if (!populations) {
-            std::snprintf(line, sizeof line, "\nPopulations (%s):\n%-16s %9s %9s %9s %12s %17s\n",
-                          info_estimator_name(q.population_estimator), "units", "joint", "sum", "synergy", "independent",
-                          "shuffle-corrected");
+            s << "\nPopulations, by " << info_estimator_name(q.population_estimator)
+              << " (independent: plug-in product of the units' conditional distributions, extrapolated);\n"
+                 "synergy = joint - sum of the units alone (negative: redundancy); 95% intervals below each value\n";
+            std::snprintf(line, sizeof line, "%*s %16s %16s %16s %16s %17s\n", static_cast<int>(unit_width), "units", "joint",
+                          "sum", "synergy", "independent", "shuffle-corrected");
             s << line;
         }
         populations = true;
         const auto& v = r.population->values;
-        std::snprintf(line, sizeof line, "%-16s %9.4f %9.4f %9.4f %12.4f %17.4f\n", r.unit.c_str(), v.joint, v.sum_single,
-                      v.synergy, v.independent, v.shuffle_corrected);
+        std::snprintf(line, sizeof line, "%*s %16.4f %16.4f %16.4f %16.4f %17.4f\n", static_cast<int>(unit_width),
+                      r.unit.c_str(), v.joint, v.sum_single, v.synergy, v.independent, v.shuffle_corrected);
+        s << line;
+        const auto& lo = r.population->low;
+        const auto& hi = r.population->high;
+        std::snprintf(line, sizeof line, "%*s %16s %16s %16s %16s %17s\n", static_cast<int>(unit_width), "",
+                      interval_text(intervals, lo.joint, hi.joint).c_str(),
+                      interval_text(intervals, lo.sum_single, hi.sum_single).c_str(),
+                      interval_text(intervals, lo.synergy, hi.synergy).c_str(),
+                      interval_text(intervals, lo.independent, hi.independent).c_str(),
+                      interval_text(intervals, lo.shuffle_corrected, hi.shuffle_corrected).c_str());
         s << line;
     }
+    // A caution every record shares is said once.
+    std::vector<std::string> shared = records.empty() ? std::vector<std::string>{} : records[0].warnings;
+    for (const auto& r: records) {
+        shared.erase(std::remove_if(shared.begin(), shared.end(),
+                                    [&](const std::string& w) {
+                                        return std::find(r.warnings.begin(), r.warnings.end(), w) == r.warnings.end();
+                                    }),
+                     shared.end());
+    }
+    if (records.size() < 2) shared.clear();
     bool any = false;
+    for (const auto& w: shared) {
+        if (!any) s << "\nCautions:\n";
+        any = true;
+        s << "  every record: " << w << "\n";
+    }
     for (const auto& r: records) {
         for (const auto& w: r.warnings) {
+            if (std::find(shared.begin(), shared.end(), w) != shared.end()) continue;
             if (!any) s << "\nCautions:\n";
             any = true;
             std::snprintf(line, sizeof line, "  %s at %g-%g ms: ", r.unit.c_str(), r.window.first * 1000, r.window.second * 1000);
             s << line << w << "\n";
         }
     }
-    s << "\nColumns are information in bits per trial by each estimator (plug-in is biased upward).\n";
+    s << "\nColumns are information in bits per trial by each estimator (plug-in is biased upward); null-sub is\n"
+         "plug-in minus its mean under shuffled labels (the shuffle bias correction).\n";
+    if (q.slide && nulls) {
+        std::set<std::pair<seconds, seconds>> windows;
+        for (const auto& r: records) windows.insert(r.window);
+        std::snprintf(line, sizeof line,
+                      "p-values are per window: over %zu windows about %.1f per unit fall below 0.05 by chance alone.\n",
+                      windows.size(), 0.05 * static_cast<double>(windows.size()));
+        s << line;
+    }
     return s.str();
 }
 
