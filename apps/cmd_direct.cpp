@@ -74,7 +74,7 @@ int run_direct(int argc, char** argv) {
         const auto result = direct_json(records, request, origin);
         const auto curves = direct_curves(records);
         return rendered_results{result.dump(2) + "\n", direct_csv(records), direct_table(records, request),
-                                curves_csv(curves, "direct"), h5_writer(result, curves)};
+                                curves_csv(curves, "direct"), h5_writer(result, curves), provenance_of(result)};
     });
 }
 

@@ -108,7 +108,7 @@ int run_stiminfo(int argc, char** argv) {
         const auto result = stiminfo_json(records, request, origin);
         const auto curves = stiminfo_curves(records, request);
         return rendered_results{result.dump(2) + "\n", stiminfo_csv(records, request), stiminfo_table(records, request),
-                                curves_csv(curves, "stiminfo"), h5_writer(result, curves)};
+                                curves_csv(curves, "stiminfo"), h5_writer(result, curves), provenance_of(result)};
     });
 }
 

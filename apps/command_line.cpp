@@ -206,6 +206,14 @@ output_choice choose_outputs(const shared_options& shared, const std::string& in
     return out;
 }
 
+std::string provenance_of(const nlohmann::ordered_json& result) {
+    nlohmann::ordered_json head;
+    for (const auto& [key, value]: result.items()) {
+        if (key != "records" && key != "curves") head[key] = value;
+    }
+    return head.dump();
+}
+
 std::function<void(const std::string&)> h5_writer(nlohmann::ordered_json result, std::vector<curve_series> curves) {
     result.erase("curves");
     return [result = std::move(result), curves = std::move(curves)](const std::string& path) {
@@ -227,8 +235,11 @@ int analyse_and_write(int argc, char** argv, const std::string& file, unsigned t
     const rendered_results results = analyse(rec, origin);
     std::vector<std::pair<std::string, std::string>> files;
     if (out.json && *out.json != "-") files.emplace_back(*out.json, results.json);
-    if (out.csv) files.emplace_back(*out.csv, results.csv);
-    if (out.curves_csv) files.emplace_back(*out.curves_csv, results.curves_csv);
+    // One comment line of provenance, so a CSV file alone still says what made it (pandas reads
+    // past it with comment='#', R with comment.char = '#').
+    const std::string origin_line = "# " + results.provenance_json + "\n";
+    if (out.csv) files.emplace_back(*out.csv, origin_line + results.csv);
+    if (out.curves_csv) files.emplace_back(*out.curves_csv, origin_line + results.curves_csv);
     // The HDF5 file is made under a temporary name first and renamed last, so a failure anywhere
     // leaves none of the outputs changed.
     std::optional<atomic_file> h5;

@@ -96,7 +96,13 @@ struct rendered_results {
     std::string curves_csv;
     /// Writes the HDF5 results file at the path given (a temporary, renamed when all outputs are written).
     std::function<void(const std::string&)> write_h5;
+    /// Where the result came from (tool, version, input, parameters, run) as one JSON object; CSV
+    /// outputs start with it as a '#' comment line.
+    std::string provenance_json;
 };
+
+/// The provenance part of a result (every key but records and curves), as compact JSON.
+std::string provenance_of(const nlohmann::ordered_json& result);
 
 /// Writes `result` (without its curves, which get datasets of their own) and `curves` as an HDF5
 /// results file, when called with the path.

@@ -95,10 +95,15 @@ TEST(cli, direct_writes_stable_json_and_tidy_csv) {
         EXPECT_TRUE(rec["by_letters"][0].contains(key)) << key;
     }
     EXPECT_FALSE(rec["warnings"].empty()) << "40 trials must carry a caution";
-    // Tidy CSV: a header and one row per (unit, bin width, word length).
+    // Tidy CSV: a provenance comment, a header and one row per (unit, bin width, word length).
     const std::string csv = read_file(folder + "/d.csv");
-    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 1 + 2 * 2 * 6);
-    EXPECT_EQ(csv.rfind("unit,stimulus,bin_ms,", 0), 0u);
+    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 2 + 2 * 2 * 6);
+    ASSERT_EQ(csv.rfind("# {", 0), 0u);
+    const json origin = json::parse(csv.substr(2, csv.find('\n') - 2));
+    EXPECT_EQ(origin["input"]["sha256"], d["input"]["sha256"]);
+    EXPECT_EQ(origin["parameters"], d["parameters"]);
+    EXPECT_TRUE(origin["run"].contains("started_utc"));
+    EXPECT_NE(csv.find("\nunit,stimulus,bin_ms,"), std::string::npos);
 }
 
 TEST(cli, same_results_for_one_and_two_threads) {
@@ -250,7 +255,7 @@ TEST(cli, stiminfo_writes_stable_json_and_refuses_bad_labels_and_windows) {
     EXPECT_EQ(rec0["trials"], 120);
     EXPECT_EQ(rec0["null"]["shuffles"], 50);
     const std::string csv = read_file(folder + "/s.csv");
-    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 1 + 6);  // header + one row per estimator
+    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 2 + 6);  // provenance, header, one row per estimator
 
     const auto bad_label = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --stimuli a,zz --json " + folder + "/x.json");
     EXPECT_EQ(bad_label.exit_code, 2);
@@ -335,7 +340,7 @@ TEST(cli, curves_csv_and_hdf5_results_are_written_together) {
     std::size_t points = 0;
     for (const auto& c: d["curves"]) points += c["x"]["values"].size();
     const std::string csv = read_file(folder + "/curves.csv");
-    EXPECT_EQ(static_cast<std::size_t>(std::count(csv.begin(), csv.end(), '\n')), 1 + points);
+    EXPECT_EQ(static_cast<std::size_t>(std::count(csv.begin(), csv.end(), '\n')), 2 + points);
     EXPECT_TRUE(file_exists(folder + "/d.h5"));
     // A bad input leaves every earlier output as it was, the HDF5 file included.
     const std::string before = read_file(folder + "/d.h5");
