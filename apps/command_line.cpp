@@ -7,6 +7,7 @@
 #include <rastrum/parallel.hpp>
 #include <rastrum/recording_hdf5.hpp>
 #include <rastrum/sha256.hpp>
+#include <rastrum/version.hpp>
 #include <rastrum/format.hpp>
 
 #include <cmath>
@@ -255,7 +256,9 @@ int analyse_and_write(int argc, char** argv, const std::string& file, unsigned t
     if (out.json && *out.json == "-") {
         std::cout << results.json;
     } else if (!out.quiet) {
-        std::cout << results.table;
+        std::cout << results.table << "\nMade by rastrum " << version() << ": " << origin.command_line << "\n(input sha256 "
+                  << origin.input_sha256 << ", " << origin.threads << (origin.threads == 1 ? " thread" : " threads")
+                  << ", " << origin.started_utc << " to " << origin.finished_utc << ")\n";
     }
     for (const auto& [path, text]: files) note(out.quiet, "wrote " + path);
     return 0;
