@@ -366,7 +366,8 @@ TEST(cli, progress_lines_only_when_asked_for_off_a_terminal) {
     const auto plain = run_rastrum(args + " --progress plain");
     ASSERT_EQ(plain.exit_code, 0);
     EXPECT_NE(plain.err.find("direct: 4/4 done"), std::string::npos) << plain.err;
-    EXPECT_EQ(plain.out, automatic.out);
+    auto table = [](const std::string& out) { return out.substr(0, out.find("\nMade by rastrum")); };
+    EXPECT_EQ(table(plain.out), table(automatic.out));
     const auto quiet = run_rastrum(args + " --progress plain --quiet --json " + fresh_folder("cli-progress") + "/d.json");
     EXPECT_EQ(quiet.err, "");
     EXPECT_EQ(run_rastrum(args + " --progress loud").exit_code, 2);
