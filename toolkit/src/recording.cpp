@@ -188,7 +188,7 @@ std::vector<std::size_t> select_trials(const recording& rec, const std::optional
     if (stimulus && !rec.has_stimulus()) {
         throw usage_error("cannot select trials with stimulus " + quoted(*stimulus) + ": " + rec.source +
                           " has no stimulus labels (nothing at " + rec.labels_place().object + ")" +
-                          rec.labels_hint);
+                          rec.origin.labels_hint);
     }
     for (std::size_t k = 0; k < rec.trial_count(); ++k) {
         if (allowed[k] && (!stimulus || rec.stimulus[k] == *stimulus)) chosen.push_back(k);

@@ -195,7 +195,7 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         const place labels = rec.labels_place();
         throw input_error(labels.file, labels.object,
                           "a stimulus label for every trial (stimulus information needs labelled conditions)",
-                          "no labels" + rec.labels_hint);
+                          "no labels" + rec.origin.labels_hint);
     }
     refuse_repeats(q.units, "--unit");
     refuse_repeats(q.stimuli, "--stimuli");

@@ -16,6 +16,16 @@ struct place {
     std::string object;
 };
 
+/// What a recording was read from, for provenance and messages. A file left empty is `source`.
+struct recording_origin {
+    std::string format;                          // "native", "nwb", "mat", "text"; empty when built in memory
+    std::string format_detail;                   // "an NWB 2.7.0 file", "a MATLAB 7.3 MAT-file", ...
+    place units{"", "/units"};                   // the units (and how their ids were chosen)
+    place trials{"", "/trials"};
+    place labels{"", "/trials/stimulus"};        // where the labels are, or where they were looked for
+    std::string labels_hint;                     // when there are none: how to give them, starting "; "
+};
+
 struct unit_spikes {
     std::string id;
     std::vector<seconds> spike_times;  // session clock, ascending (loaders sort and warn)
@@ -28,16 +38,12 @@ struct recording {
     std::vector<seconds> trial_stop;         // trial_stop[k] > trial_start[k]
     std::vector<std::string> stimulus;       // empty, or one label per trial (integers as decimal text)
     std::vector<std::string> warnings;       // what the loader repaired or noticed (sorted spikes, empty units)
-    /// For messages about labels: the file and object they are read from, or were looked for
-    /// (an empty file means `source`), and, when there are none, how to give them (starting "; ").
-    std::string labels_file;
-    std::string labels_object = "/trials/stimulus";
-    std::string labels_hint;
+    recording_origin origin;
 
     std::size_t trial_count() const { return trial_start.size(); }
     bool has_stimulus() const { return !stimulus.empty(); }
-    /// Where the labels are (or would be), for messages.
-    place labels_place() const { return {labels_file.empty() ? source : labels_file, labels_object}; }
+    /// Where the labels are (or would be), for messages: `origin.labels` in `source` unless it names a file.
+    place labels_place() const { return {origin.labels.file.empty() ? source : origin.labels.file, origin.labels.object}; }
     /// The unit with this id. Throws usage_error naming the ids that exist when there is none.
     const unit_spikes& unit(const std::string& id) const;
 };

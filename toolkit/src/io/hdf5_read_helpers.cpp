@@ -1,10 +1,10 @@
 #include "hdf5_read_helpers.hpp"
+#include "loader_steps.hpp"
 
-#include <cerrno>
-#include <cstring>
-#include <filesystem>
-#include <fstream>
+#include <algorithm>
+#include <cmath>
 #include <functional>
+#include <optional>
 #include <limits>
 
 namespace rastrum::hdf5 {
@@ -212,19 +212,19 @@ std::string describe_type(const H5::DataType& type) {
     }
 }
 
-source::source(std::string path): path_(std::move(path)) {
-    namespace fs = std::filesystem;
-    std::error_code ec;
-    const auto status = fs::status(path_, ec);
-    if (!fs::exists(status)) throw input_error(path_, "", "an existing HDF5 file", "no such file");
-    if (fs::is_directory(status)) throw input_error(path_, "", "an HDF5 file", "a directory");
-    if (!fs::is_regular_file(status)) throw input_error(path_, "", "an HDF5 file", "not a regular file");
-    if (!std::ifstream(path_, std::ios::binary)) {
-        throw input_error(path_, "", "a readable HDF5 file", std::string("a file that cannot be opened: ") +
-                                                                 std::strerror(errno));
+bool has_signature(const std::string& path) {
+    const error_capture capture;
+    try {
+        forget_library_message();
+        return H5::H5File::isHdf5(path);
+    } catch (const H5::Exception& e) {
+        throw input_error(path, "", "an HDF5 file", "an HDF5 error: " + library_message(e));
     }
-    const bool is_hdf5 = guard("", "an HDF5 file", [&] { return H5::H5File::isHdf5(path_); });
-    if (!is_hdf5) throw input_error(path_, "", "an HDF5 file", "a file without the HDF5 signature");
+}
+
+source::source(std::string path): path_(std::move(path)) {
+    require_readable_file(path_, "HDF5 file", "an");
+    if (!has_signature(path_)) throw input_error(path_, "", "an HDF5 file", "a file without the HDF5 signature");
     guard("", "an HDF5 file that the HDF5 library can open", [&] { file_.openFile(path_, H5F_ACC_RDONLY); });
     file_size_ = guard("", "an HDF5 file of known size", [&] { return file_.getFileSize(); });
 }
@@ -313,8 +313,25 @@ std::vector<std::string> source::member_names(const std::string& group_path) {
     });
 }
 
-extent_1d source::checked_extent(const H5::DataSet& dataset, const std::string& object,
-                                 const std::string& expected) {
+namespace {
+std::string shape_text(const std::vector<hsize_t>& dims) {
+    std::string shape;
+    for (const hsize_t d: dims) shape += (shape.empty() ? "" : " x ") + std::to_string(d);
+    return "a " + std::to_string(dims.size()) + "-D dataset [" + shape + "]";
+}
+
+// The element count when `dims` has an accepted shape.
+std::optional<hsize_t> elements_in(const std::vector<hsize_t>& dims, shape accepted) {
+    if (dims.size() == 1) return dims[0];
+    if (accepted == shape::matlab_vector && dims.size() == 2 && (dims[0] <= 1 || dims[1] <= 1)) {
+        return dims[0] * dims[1];  // each at most max_elements, checked before
+    }
+    return std::nullopt;
+}
+}  // namespace
+
+std::vector<std::uint64_t> source::checked_dimensions(const H5::DataSet& dataset, const std::string& object,
+                                                      const std::string& expected) {
     const H5::DataSpace space = dataset.getSpace();
     switch (space.getSimpleExtentType()) {
     case H5S_NULL: throw input_error(path_, object, expected, "a dataset with a null dataspace (no shape)");
@@ -322,18 +339,16 @@ extent_1d source::checked_extent(const H5::DataSet& dataset, const std::string& 
     default: break;
     }
     const int rank = space.getSimpleExtentNdims();
-    if (rank != 1) {
-        std::vector<hsize_t> dims(static_cast<std::size_t>(rank));
-        space.getSimpleExtentDims(dims.data());
-        std::string shape;
-        for (const hsize_t d: dims) shape += (shape.empty() ? "" : " x ") + std::to_string(d);
-        throw input_error(path_, object, expected, "a " + std::to_string(rank) + "-D dataset [" + shape + "]");
-    }
-    hsize_t n = 0;
-    space.getSimpleExtentDims(&n);
-    if (n > max_elements) {
-        throw input_error(path_, object, expected + " of at most 2^31 elements",
-                          "a declared size of " + std::to_string(n) + " elements");
+    std::vector<hsize_t> dims(static_cast<std::size_t>(std::max(rank, 0)));
+    space.getSimpleExtentDims(dims.data());
+    hsize_t n = 1;
+    for (const hsize_t d: dims) {
+        if (d > max_elements || n * d > max_elements) {
+            throw input_error(path_, object, expected + " of at most 2^31 elements",
+                              "a declared size of " + std::to_string(dims.size() == 1 ? d : n * d) + " elements" +
+                                  (dims.size() == 1 ? "" : " (" + shape_text(dims) + ")"));
+        }
+        n *= d;
     }
     // Compare the declared size with the file before anything is allocated: a corrupt or hostile
     // header can claim any size, and unwritten chunks read back as fill values.
@@ -348,16 +363,32 @@ extent_1d source::checked_extent(const H5::DataSet& dataset, const std::string& 
                           "a declared size of " + std::to_string(n) + " elements of " + bytes_text(stored_each) +
                               " (" + bytes_text(n * stored_each) + ")");
     }
-    return extent_1d{static_cast<std::size_t>(n)};
+    return std::vector<std::uint64_t>(dims.begin(), dims.end());
 }
 
-std::vector<double> source::read_float64(const std::string& object) {
-    const std::string expected = "a 1-D float64 dataset (any float type)";
+extent_1d source::checked_extent(const H5::DataSet& dataset, const std::string& object, const std::string& expected,
+                                 shape accepted) {
+    const std::vector<std::uint64_t> stored = checked_dimensions(dataset, object, expected);
+    const std::vector<hsize_t> dims(stored.begin(), stored.end());
+    const std::optional<hsize_t> n = elements_in(dims, accepted);
+    if (!n) throw input_error(path_, object, expected, shape_text(dims));
+    return extent_1d{static_cast<std::size_t>(*n)};
+}
+
+std::vector<std::uint64_t> source::dimensions(const std::string& object) {
+    const std::string expected = "a dataset";
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] { return checked_dimensions(ds, object, expected); });
+}
+
+std::vector<double> source::read_float64(const std::string& object, shape accepted) {
+    const std::string expected = accepted == shape::one_dimensional ? "a 1-D float64 dataset (any float type)"
+                                                                      : "a vector of floats";
     const H5::DataSet ds = dataset(object, expected);
     return guard(object, expected, [&] {
         const H5::DataType type = ds.getDataType();
         if (type.getClass() != H5T_FLOAT) throw input_error(path_, object, expected, of_type(type));
-        std::vector<double> values(checked_extent(ds, object, expected).elements);
+        std::vector<double> values(checked_extent(ds, object, expected, accepted).elements);
         if (!values.empty()) ds.read(values.data(), H5::PredType::NATIVE_DOUBLE);
         return values;
     });
@@ -396,14 +427,14 @@ void require_integer_width(const H5::DataType& type, const std::string& file, co
 }
 }  // namespace
 
-std::vector<std::int64_t> source::read_int64(const std::string& object) {
-    const std::string expected = "a 1-D integer dataset";
+std::vector<std::int64_t> source::read_int64(const std::string& object, shape accepted) {
+    const std::string expected = accepted == shape::one_dimensional ? "a 1-D integer dataset" : "a vector of integers";
     const H5::DataSet ds = dataset(object, expected);
     return guard(object, expected, [&] {
         const H5::DataType type = ds.getDataType();
         if (type.getClass() != H5T_INTEGER) throw input_error(path_, object, expected, of_type(type));
         require_integer_width(type, path_, object, expected);
-        return read_integers(ds, checked_extent(ds, object, expected).elements, path_, object);
+        return read_integers(ds, checked_extent(ds, object, expected, accepted).elements, path_, object);
     });
 }
 
@@ -432,20 +463,34 @@ std::vector<std::string> source::read_strings(const std::string& object) {
     });
 }
 
-std::vector<std::string> source::read_labels(const std::string& object) {
-    const std::string expected = "a 1-D dataset of integer or string labels";
+std::vector<std::string> source::read_labels(const std::string& object, label_types accepted, shape accepted_shape) {
+    const bool floats = accepted == label_types::numbers_and_text;
+    const std::string expected = std::string(accepted_shape == shape::one_dimensional ? "a 1-D dataset" : "a vector") +
+                                 (floats ? " of numbers or strings" : " of integer or string labels");
     const H5::DataSet ds = dataset(object, expected);
     return guard(object, expected, [&] {
         const H5::DataType type = ds.getDataType();
-        if (type.getClass() != H5T_INTEGER && type.getClass() != H5T_STRING) {
+        const H5T_class_t kind = type.getClass();
+        if (kind != H5T_INTEGER && kind != H5T_STRING && !(floats && kind == H5T_FLOAT)) {
             throw input_error(path_, object, expected, of_type(type));
         }
-        const std::size_t n = checked_extent(ds, object, expected).elements;
-        if (type.getClass() == H5T_STRING) return read_string_elements(ds, ds.getStrType(), n, object);
-        require_integer_width(type, path_, object, expected);
+        const std::size_t n = checked_extent(ds, object, expected, accepted_shape).elements;
+        if (kind == H5T_STRING) return read_string_elements(ds, ds.getStrType(), n, object);
         std::vector<std::string> labels;
         labels.reserve(n);
         if (n == 0) return labels;
+        if (kind == H5T_FLOAT) {
+            std::vector<double> values(n);
+            ds.read(values.data(), H5::PredType::NATIVE_DOUBLE);
+            for (std::size_t i = 0; i < n; ++i) {
+                if (!std::isfinite(values[i])) {
+                    throw input_error(path_, element_path(object, i), "a finite number", exact_number(values[i]));
+                }
+                labels.push_back(exact_number(values[i]));
+            }
+            return labels;
+        }
+        require_integer_width(type, path_, object, expected);
         // Labels are text, so unsigned 64-bit values keep their exact decimal form.
         if (is_wide_unsigned(type)) {
             std::vector<std::uint64_t> raw(n);
@@ -455,6 +500,35 @@ std::vector<std::string> source::read_labels(const std::string& object) {
             for (const std::int64_t v: read_integers(ds, n, path_, object)) labels.push_back(std::to_string(v));
         }
         return labels;
+    });
+}
+
+std::vector<std::string> source::read_reference_paths(const std::string& object, shape accepted) {
+    const std::string expected = "a dataset of object references";
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] {
+        const H5::DataType type = ds.getDataType();
+        if (type.getClass() != H5T_REFERENCE || !(type == H5::PredType::STD_REF_OBJ)) {
+            throw input_error(path_, object, expected, of_type(type));
+        }
+        const std::size_t n = checked_extent(ds, object, expected, accepted).elements;
+        std::vector<hobj_ref_t> refs(n);
+        if (n > 0) ds.read(refs.data(), H5::PredType::STD_REF_OBJ);
+        std::vector<std::string> paths;
+        paths.reserve(n);
+        for (std::size_t i = 0; i < n; ++i) {
+            forget_library_message();
+            const ssize_t length = H5Rget_name(file_.getId(), H5R_OBJECT, &refs[i], nullptr, 0);
+            if (length <= 0) {
+                throw input_error(path_, element_path(object, i), "a reference to a named object in this file",
+                                  length < 0 ? "an HDF5 error: " + captured_message() : "an object without a name");
+            }
+            std::string name(static_cast<std::size_t>(length) + 1, '\0');
+            H5Rget_name(file_.getId(), H5R_OBJECT, &refs[i], name.data(), name.size());
+            name.resize(static_cast<std::size_t>(length));
+            paths.push_back(std::move(name));
+        }
+        return paths;
     });
 }
 

@@ -3,11 +3,28 @@
 #include <rastrum/errors.hpp>
 
 #include <algorithm>
+#include <cerrno>
 #include <charconv>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
 #include <cmath>
 #include <numeric>
 
 namespace rastrum {
+
+void require_readable_file(const std::string& path, const std::string& kind, const std::string& article) {
+    namespace fs = std::filesystem;
+    std::error_code ec;
+    const auto status = fs::status(path, ec);
+    if (!fs::exists(status)) throw input_error(path, "", "an existing " + kind, "no such file");
+    if (fs::is_directory(status)) throw input_error(path, "", article + " " + kind, "a directory");
+    if (!fs::is_regular_file(status)) throw input_error(path, "", article + " " + kind, "not a regular file");
+    if (!std::ifstream(path, std::ios::binary)) {
+        throw input_error(path, "", "a readable " + kind,
+                          std::string("a file that cannot be opened: ") + std::strerror(errno));
+    }
+}
 
 namespace {
 bool is_digit(char c) { return c >= '0' && c <= '9'; }

@@ -10,6 +10,11 @@
 
 namespace rastrum {
 
+/// Throws input_error naming `path` unless it is an existing regular file that can be opened for
+/// reading; `kind` says what was expected ("HDF5 file", "recording file") and `article` is its
+/// article ("an", "a").
+void require_readable_file(const std::string& path, const std::string& kind, const std::string& article);
+
 /// Natural order (notes/recording-layout.md, "Unit ids"): runs of decimal digits compare by value,
 /// everything else byte by byte; names equal under that rule fall back to byte order.
 bool natural_less(const std::string& a, const std::string& b);

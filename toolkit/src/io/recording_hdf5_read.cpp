@@ -49,6 +49,8 @@ recording read_recording_hdf5(const std::string& path) {
     hdf5::source src(path);
     recording rec;
     rec.source = path;
+    rec.origin.format = "native";
+    rec.origin.format_detail = "an HDF5 file in the native layout";
 
     check_layout_attributes(src);
 
