@@ -372,3 +372,23 @@ TEST(cli, progress_lines_only_when_asked_for_off_a_terminal) {
     EXPECT_EQ(quiet.err, "");
     EXPECT_EQ(run_rastrum(args + " --progress loud").exit_code, 2);
 }
+
+// On a terminal (a real pseudo-terminal from util-linux `script`), the default shows a bar with
+// counts and time left on stderr, and --quiet silences it (design).
+TEST(cli, progress_bar_on_a_terminal) {
+    if (std::system("command -v script >/dev/null 2>&1") != 0) GTEST_SKIP() << "util-linux script is not installed";
+    const std::string folder = fresh_folder("cli-terminal");
+    auto on_terminal = [&](const std::string& extra) {
+        const std::string log = folder + "/terminal.log";
+        const std::string inner = std::string("'") + RASTRUM_BINARY + "' direct '" + small_recording() +
+                                  "' --bin-ms 2,4 --letters 1-4 --json '" + folder + "/d.json' " + extra;
+        const std::string command = "script -qec \"" + inner + "\" /dev/null >'" + log + "' 2>&1";
+        EXPECT_EQ(std::system(command.c_str()), 0) << command;
+        return read_file(log);
+    };
+    const std::string shown = on_terminal("");
+    EXPECT_NE(shown.find("direct ["), std::string::npos) << shown;
+    EXPECT_NE(shown.find("4/4"), std::string::npos) << shown;
+    const std::string quiet = on_terminal("--quiet");
+    EXPECT_EQ(quiet.find("direct ["), std::string::npos) << quiet;
+}
