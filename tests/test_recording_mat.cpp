@@ -276,3 +276,23 @@ TEST(MatMalformed, EmptyCellHasNoUnits) {
     rec.units.clear();
     expect_mat_error(mat_file(rec), standard_names(), "spikes", "at least one unit");
 }
+
+TEST(MatMalformed, TwoCellsSharingOneArray) {
+    const std::string path = mat_file(invented_recording(), {}, [](H5::H5File& f) {
+        hobj_ref_t refs[2];
+        f.reference(&refs[0], "/#refs#/c0");
+        f.reference(&refs[1], "/#refs#/c0");
+        f.unlink("spikes");
+        const hsize_t dims[2] = {2, 1};
+        const H5::DataSet ds = f.createDataSet("spikes", H5::PredType::STD_REF_OBJ, H5::DataSpace(2, dims));
+        ds.write(refs, H5::PredType::STD_REF_OBJ);
+        matlab_class(ds, "cell");
+    });
+    expect_mat_error(path, standard_names(false), "spikes{2}", "of its own", "same array as spikes{1}");
+}
+
+TEST(MatMalformed, OverlongLabel) {
+    rastrum::recording rec = invented_recording();
+    rec.stimulus[1] = std::string(5000, 'x');
+    expect_mat_error(mat_file(rec), standard_names(), "stimulus{2}", "at most 4096 characters", "char 1x5000");
+}

@@ -110,6 +110,22 @@ TEST(NwbRead, FloatLabelsAsShortestDecimals) {
     EXPECT_EQ(read_recording_nwb(path).stimulus, (std::vector<std::string>{"0.25", "3", "0.1"}));
 }
 
+TEST(NwbRead, BooleanLabelsByTheirNames) {
+    // h5py (and so PyNWB) stores bool as an HDF5 enumeration over int8 {FALSE = 0, TRUE = 1}
+    // (shared formats notes, section 1, from h5py's h5t.pyx).
+    const std::string path = nwb_file(binary_fraction_recording(), {}, [](H5::H5File& f) {
+        f.unlink("/intervals/trials/stimulus");
+        H5::EnumType type(H5::PredType::NATIVE_INT8);
+        std::int8_t no = 0, yes = 1;  // insert() takes non-const pointers
+        type.insert("FALSE", &no);
+        type.insert("TRUE", &yes);
+        const std::int8_t values[3] = {1, 0, 1};
+        const hsize_t n = 3;
+        f.createDataSet("/intervals/trials/stimulus", type, H5::DataSpace(1, &n)).write(values, type);
+    });
+    EXPECT_EQ(read_recording_nwb(path).stimulus, (std::vector<std::string>{"TRUE", "FALSE", "TRUE"}));
+}
+
 TEST(NwbRead, OtherIntervalTableAndLabelColumn) {
     const rastrum::recording rec = invented_recording();
     nwb_writing how;

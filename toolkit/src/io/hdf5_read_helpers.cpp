@@ -471,11 +471,13 @@ std::vector<std::string> source::read_labels(const std::string& object, label_ty
     return guard(object, expected, [&] {
         const H5::DataType type = ds.getDataType();
         const H5T_class_t kind = type.getClass();
-        if (kind != H5T_INTEGER && kind != H5T_STRING && !(floats && kind == H5T_FLOAT)) {
+        const bool enumeration = floats && kind == H5T_ENUM;
+        if (kind != H5T_INTEGER && kind != H5T_STRING && !(floats && kind == H5T_FLOAT) && !enumeration) {
             throw input_error(path_, object, expected, of_type(type));
         }
         const std::size_t n = checked_extent(ds, object, expected, accepted_shape).elements;
         if (kind == H5T_STRING) return read_string_elements(ds, ds.getStrType(), n, object);
+        if (enumeration) return read_enum_names(ds, n, object);
         std::vector<std::string> labels;
         labels.reserve(n);
         if (n == 0) return labels;
@@ -501,6 +503,29 @@ std::vector<std::string> source::read_labels(const std::string& object, label_ty
         }
         return labels;
     });
+}
+
+std::vector<std::string> source::read_enum_names(const H5::DataSet& ds, std::size_t n, const std::string& object) {
+    // Read in the enumeration's own (native-order) type and named member by member: HDF5 converts
+    // enumerations only to enumerations, and the names are what the writer meant (TRUE, FALSE).
+    const hid_t native = H5Tget_native_type(ds.getDataType().getId(), H5T_DIR_ASCEND);
+    if (native < 0) throw input_error(path_, object, "a readable enumeration", "an HDF5 error: " + captured_message());
+    const H5::EnumType type(native);
+    H5Tclose(native);
+    const std::size_t width = type.getSize();
+    std::vector<unsigned char> raw(n * width);
+    if (n > 0) ds.read(raw.data(), type);
+    std::vector<std::string> labels;
+    labels.reserve(n);
+    for (std::size_t i = 0; i < n; ++i) {
+        char name[256];
+        if (H5Tenum_nameof(type.getId(), raw.data() + i * width, name, sizeof name) < 0) {
+            throw input_error(path_, element_path(object, i), "a value that is a member of its enumeration",
+                              "a value without a name");
+        }
+        labels.emplace_back(name);
+    }
+    return labels;
 }
 
 std::vector<std::string> source::read_reference_paths(const std::string& object, shape accepted) {

@@ -119,7 +119,8 @@ public:
     /// A one-dimensional dataset of strings, variable- or fixed-length, each checked to be UTF-8.
     std::vector<std::string> read_strings(const std::string& object);
     /// Labels: integers (any width, as decimal text), strings, and with numbers_and_text also
-    /// finite floats (as the shortest decimal that reads back as the same value: 0.25, 3).
+    /// finite floats (as the shortest decimal that reads back as the same value: 0.25, 3) and
+    /// enumerations (as their members' names: NWB's booleans read FALSE and TRUE).
     std::vector<std::string> read_labels(const std::string& object, label_types accepted = label_types::integers_and_text,
                                          shape accepted_shape = shape::one_dimensional);
     /// Object references (H5T_STD_REF_OBJ), as the paths of the objects they point to.
@@ -142,6 +143,7 @@ private:
     // more bytes than the file holds, or 1032 times that when filtered).
     std::vector<std::uint64_t> checked_dimensions(const H5::DataSet& dataset, const std::string& object,
                                                   const std::string& expected);
+    std::vector<std::string> read_enum_names(const H5::DataSet& dataset, std::size_t elements, const std::string& object);
     std::vector<std::string> read_string_elements(const H5::DataSet& dataset, const H5::StrType& type,
                                                   std::size_t elements, const std::string& object);
 

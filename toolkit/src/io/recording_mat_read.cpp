@@ -5,6 +5,7 @@
 #include <rastrum/recording_mat.hpp>
 
 #include <algorithm>
+#include <unordered_map>
 
 namespace rastrum {
 
@@ -164,6 +165,10 @@ std::string utf8_of_utf16(const std::vector<std::int64_t>& units, const std::str
 
 const char* labels_expected = "a numeric vector or a cell array of char vectors";
 
+// Cells may point at one object many times, so a label's length is capped: otherwise a small file
+// whose cells all name one long char array could ask for far more memory than it holds.
+constexpr std::size_t longest_label = 4096;
+
 std::string read_char_vector(hdf5::source& src, const matlab_array& a) {
     const std::string expected = "a char vector";
     require_readable(src.path(), a, expected);
@@ -171,6 +176,10 @@ std::string read_char_vector(hdf5::source& src, const matlab_array& a) {
         throw input_error(src.path(), a.name, expected, "a " + a.matlab_class + " " + a.size);
     }
     if (a.empty) return "";
+    if (a.rows * a.columns > longest_label) {
+        throw input_error(src.path(), a.name, expected + " of at most " + std::to_string(longest_label) + " characters",
+                          "a char " + a.size);
+    }
     return utf8_of_utf16(as_matlab(a, [&] { return src.read_int64(a.path, hdf5::shape::matlab_vector); }), src.path(),
                          a.name);
 }
@@ -295,6 +304,16 @@ recording read_recording_mat(const std::string& path, const mat_choice& choice) 
         }
     } else {
         for (std::size_t i = 0; i < targets.size(); ++i) ids.push_back("u" + std::to_string(i + 1));
+    }
+    // Each unit's times stored once: a shared object would be one unit counted twice (and would let
+    // a small file claim many copies of a large array).
+    std::unordered_map<std::string, std::size_t> first_cell;
+    for (std::size_t i = 0; i < targets.size(); ++i) {
+        const auto [seen, fresh] = first_cell.emplace(targets[i], i);
+        if (!fresh) {
+            throw input_error(path, matlab_cell(spikes.name, i), "spike times of its own (a cell per unit)",
+                              "the same array as " + matlab_cell(spikes.name, seen->second) + " (" + targets[i] + ")");
+        }
     }
     std::vector<std::size_t> cells;
     for (const std::size_t i: natural_order(ids)) {
