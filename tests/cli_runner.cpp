@@ -25,11 +25,12 @@ std::string fresh_folder(const std::string& name) {
     return folder;
 }
 
-process_result run_rastrum(const std::string& args) {
+namespace {
+process_result run_with(const std::string& prefix, const std::string& args) {
     static int serial = 0;
     const std::string base = std::string(RASTRUM_TEST_TMP) + "/run-" + std::to_string(::getpid()) + "-" +
                              std::to_string(serial++);
-    const std::string command = std::string("'") + RASTRUM_BINARY + "' " + args + " </dev/null >'" + base +
+    const std::string command = prefix + "'" + RASTRUM_BINARY + "' " + args + " </dev/null >'" + base +
                                 ".out' 2>'" + base + ".err'";
     const int status = std::system(command.c_str());
     process_result r;
@@ -39,6 +40,14 @@ process_result run_rastrum(const std::string& args) {
     std::filesystem::remove(base + ".out");
     std::filesystem::remove(base + ".err");
     return r;
+}
+}  // namespace
+
+process_result run_rastrum(const std::string& args) { return run_with("", args); }
+
+process_result run_rastrum_limited(const std::string& args, unsigned seconds, unsigned long memory_kib) {
+    // POSIX sh: the limit applies to the timeout process and the rastrum it starts.
+    return run_with("ulimit -v " + std::to_string(memory_kib) + "; timeout " + std::to_string(seconds) + " ", args);
 }
 
 }  // namespace rastrum::testing

@@ -56,6 +56,10 @@ detected_format detect_format(const std::string& path) {
     require_readable_file(path, "recording file", "a");
     const std::string head = head_of(path, 4096);
     if (hdf5::has_signature(path)) return detect_hdf5(path, head);
+    if (starts_with(head, mat73_header)) {
+        throw input_error(path, "", "a MATLAB 7.3 MAT-file: its header followed by HDF5 data",
+                          "the header without HDF5 data after it (a truncated or damaged file)");
+    }
     if (starts_with(head, mat_header) && head.find("MAT-file") != std::string::npos) {
         throw input_error(path, "", "a MATLAB MAT-file of version 7.3 (HDF5), saved with save(..., '-v7.3')",
                           "\"" + mat_description(head) + "\", an older MAT-file version that is not HDF5");

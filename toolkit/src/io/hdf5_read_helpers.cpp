@@ -3,6 +3,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstring>
 #include <functional>
 #include <optional>
 #include <limits>
@@ -235,11 +236,20 @@ namespace {
 struct resolution {
     object_kind kind;
     std::string at;
+    std::string link;  // what a link that leads nowhere is, for messages; empty otherwise
 };
+
+// The target of the soft link at `path`, made printable and short.
+std::string soft_link_target(hid_t loc, const std::string& path, std::size_t size) {
+    std::string target(std::min<std::size_t>(size, 4096) + 1, '\0');
+    if (H5Lget_val(loc, path.c_str(), target.data(), target.size(), H5P_DEFAULT) < 0) return "?";
+    target.resize(std::strlen(target.c_str()));
+    return printable(target.substr(0, 200));
+}
 
 resolution resolve(H5::H5File& file, const std::string& file_path, const std::string& object) {
     if (object.empty() || object[0] != '/') throw internal_error("HDF5 path not absolute: " + object);
-    if (object == "/") return {object_kind::group, object};
+    if (object == "/") return {object_kind::group, object, ""};
     const hid_t loc = file.getId();
     std::size_t from = 1;
     while (true) {
@@ -250,9 +260,19 @@ resolution resolve(H5::H5File& file, const std::string& file_path, const std::st
         if (link < 0) {
             throw input_error(file_path, prefix, "a readable link", "an HDF5 error: " + captured_message());
         }
-        // A soft or external link may name nothing; that is as missing as no link.
-        if (link == 0 || H5Oexists_by_name(loc, prefix.c_str(), H5P_DEFAULT) <= 0) {
-            return {object_kind::missing, prefix};
+        if (link == 0) return {object_kind::missing, prefix, ""};
+        // An external link is not followed: the recording is this one file, and opening whatever a
+        // link names (a missing file, a device, a pipe that blocks) is not a loader's business.
+        H5L_info_t info{};
+        if (H5Lget_info(loc, prefix.c_str(), &info, H5P_DEFAULT) >= 0 && info.type == H5L_TYPE_EXTERNAL) {
+            return {object_kind::missing, prefix, "an external link to another file (rastrum reads one file and does not follow it)"};
+        }
+        // A soft link may name nothing, or loop back on itself (HDF5 stops after a fixed number of
+        // hops); either is as missing as no link, and the message says which link it was.
+        if (H5Oexists_by_name(loc, prefix.c_str(), H5P_DEFAULT) <= 0) {
+            const std::string target = info.type == H5L_TYPE_SOFT ? soft_link_target(loc, prefix, info.u.val_size) : "";
+            return {object_kind::missing, prefix,
+                    "a soft link to " + target + " that leads to no object (dangling, or a cycle of soft links)"};
         }
         H5O_type_t type = H5O_TYPE_UNKNOWN;
         try {
@@ -261,7 +281,7 @@ resolution resolve(H5::H5File& file, const std::string& file_path, const std::st
             throw input_error(file_path, prefix, "an intact, readable HDF5 object", "an HDF5 error: " + library_message(e));
         }
         const object_kind kind = kind_of(type);
-        if (slash == std::string::npos || kind != object_kind::group) return {kind, prefix};
+        if (slash == std::string::npos || kind != object_kind::group) return {kind, prefix, ""};
         from = slash + 1;
     }
 }
@@ -275,10 +295,9 @@ object_kind source::kind(const std::string& object) {
 namespace {
 void require_kind(const std::string& file, const std::string& object, const resolution& r, object_kind wanted,
                   const std::string& expected) {
-    if (r.at != object) {
-        throw input_error(file, r.at, "a group (on the way to " + object + ")", kind_name(r.kind));
-    }
-    if (r.kind != wanted) throw input_error(file, object, expected, kind_name(r.kind));
+    const std::string found = r.link.empty() ? kind_name(r.kind) : r.link;
+    if (r.at != object) throw input_error(file, r.at, "a group (on the way to " + object + ")", found);
+    if (r.kind != wanted) throw input_error(file, object, expected, found);
 }
 }  // namespace
 

@@ -41,6 +41,32 @@ std::string matlab_size(const std::vector<std::uint64_t>& dims) {
     return dims.size() == 1 ? "1x" + size : size;
 }
 
+// MATLAB's own index notation, which is what the user typed: element i of a vector is name(i + 1).
+std::string matlab_element(const std::string& name, std::size_t i) { return name + "(" + std::to_string(i + 1) + ")"; }
+std::string matlab_cell(const std::string& name, std::size_t i) { return name + "{" + std::to_string(i + 1) + "}"; }
+
+// Runs a read of HDF5 path `a.path`, naming any object in its messages as MATLAB would: "/ts[3]"
+// becomes "ts(4)".
+template <class F>
+auto as_matlab(const matlab_array& a, F read) -> decltype(read()) {
+    try {
+        return read();
+    } catch (const input_error& e) {
+        std::string object = e.object;
+        if (object.rfind(a.path, 0) == 0) {
+            const std::string rest = object.substr(a.path.size());
+            if (rest.empty()) {
+                object = a.name;
+            } else if (rest.front() == '[' && rest.back() == ']') {
+                object = matlab_element(a.name, std::stoull(rest.substr(1, rest.size() - 2)));
+            } else if (rest.front() == '@') {
+                object = a.name + " (attribute " + rest.substr(1) + ")";
+            }
+        }
+        throw input_error(e.file, object, e.expected, e.found);
+    }
+}
+
 matlab_array inspect(hdf5::source& src, const std::string& path, const std::string& name) {
     matlab_array a;
     a.path = path;
@@ -54,7 +80,7 @@ matlab_array inspect(hdf5::source& src, const std::string& path, const std::stri
     if (src.has_attribute(path, "MATLAB_class")) a.matlab_class = src.read_string_attribute(path, "MATLAB_class");
     if (src.has_attribute(path, "MATLAB_empty")) a.empty = src.read_int64_attribute(path, "MATLAB_empty") != 0;
     if (a.dataset && !a.empty) {
-        const std::vector<std::uint64_t> dims = src.dimensions(path);
+        const std::vector<std::uint64_t> dims = as_matlab(a, [&] { return src.dimensions(path); });
         a.size = matlab_size(dims);
         a.rows = static_cast<std::size_t>(dims.size() == 2 ? dims[1] : 1);
         a.columns = static_cast<std::size_t>(dims.empty() ? 1 : dims[0]);
@@ -85,36 +111,16 @@ matlab_array inspect(hdf5::source& src, const std::string& path, const std::stri
     return a;
 }
 
-// MATLAB's own index notation, which is what the user typed: element i of a vector is name(i + 1).
-std::string matlab_element(const std::string& name, std::size_t i) { return name + "(" + std::to_string(i + 1) + ")"; }
-std::string matlab_cell(const std::string& name, std::size_t i) { return name + "{" + std::to_string(i + 1) + "}"; }
-
-// Runs a read of HDF5 path `a.path`, naming any object in its messages as MATLAB would: "/ts[3]"
-// becomes "ts(4)".
-template <class F>
-auto as_matlab(const matlab_array& a, F read) -> decltype(read()) {
-    try {
-        return read();
-    } catch (const input_error& e) {
-        std::string object = e.object;
-        if (object.rfind(a.path, 0) == 0) {
-            const std::string rest = object.substr(a.path.size());
-            if (rest.empty()) {
-                object = a.name;
-            } else if (rest.front() == '[' && rest.back() == ']') {
-                object = matlab_element(a.name, std::stoull(rest.substr(1, rest.size() - 2)));
-            } else if (rest.front() == '@') {
-                object = a.name + " (attribute " + rest.substr(1) + ")";
-            }
-        }
-        throw input_error(e.file, object, e.expected, e.found);
-    }
+// "a double 1x40", "an int32 2x2": what the array is, for messages.
+std::string described(const matlab_array& a) {
+    const bool vowel = !a.matlab_class.empty() && std::string("aeiou").find(a.matlab_class[0]) != std::string::npos;
+    return (vowel ? "an " : "a ") + a.matlab_class + " " + a.size;
 }
 
 void require_readable(const std::string& file, const matlab_array& a, const std::string& expected) {
     if (!a.unreadable.empty()) throw input_error(file, a.name, expected, a.unreadable);
     if (a.rows > 1 && a.columns > 1) {
-        throw input_error(file, a.name, expected, "a " + a.matlab_class + " " + a.size + " matrix");
+        throw input_error(file, a.name, expected, described(a) + " matrix");
     }
 }
 
@@ -126,7 +132,7 @@ std::vector<double> read_times(hdf5::source& src, const matlab_array& a) {
         const std::string advice = is_integer_class(a.matlab_class) || a.matlab_class == "logical"
                                        ? " (convert with double(" + a.name + "), in seconds)"
                                        : "";
-        throw input_error(src.path(), a.name, times_expected, "a " + a.matlab_class + " " + a.size + advice);
+        throw input_error(src.path(), a.name, times_expected, described(a) + advice);
     }
     if (a.empty) return {};
     return as_matlab(a, [&] { return src.read_float64(a.path, hdf5::shape::matlab_vector); });
@@ -173,7 +179,7 @@ std::string read_char_vector(hdf5::source& src, const matlab_array& a) {
     const std::string expected = "a char vector";
     require_readable(src.path(), a, expected);
     if (a.matlab_class != "char") {
-        throw input_error(src.path(), a.name, expected, "a " + a.matlab_class + " " + a.size);
+        throw input_error(src.path(), a.name, expected, described(a));
     }
     if (a.empty) return "";
     if (a.rows * a.columns > longest_label) {
@@ -201,7 +207,7 @@ std::vector<std::string> read_labels(hdf5::source& src, const matlab_array& a) {
     }
     if (!is_numeric_class(a.matlab_class)) {
         const std::string advice = a.matlab_class == "char" ? " (save one label per trial: cellstr(" + a.name + "))" : "";
-        throw input_error(src.path(), a.name, labels_expected, "a " + a.matlab_class + " " + a.size + advice);
+        throw input_error(src.path(), a.name, labels_expected, described(a) + advice);
     }
     if (a.empty) return {};
     return as_matlab(a, [&] {
@@ -291,7 +297,7 @@ recording read_recording_mat(const std::string& path, const mat_choice& choice) 
     require_readable(path, spikes, cells_expected);
     if (spikes.matlab_class != "cell") {
         const std::string advice = is_float_class(spikes.matlab_class) ? " (one unit? save {" + spikes.name + "})" : "";
-        throw input_error(path, spikes.name, cells_expected, "a " + spikes.matlab_class + " " + spikes.size + advice);
+        throw input_error(path, spikes.name, cells_expected, described(spikes) + advice);
     }
     const std::vector<std::string> targets = cell_targets(src, spikes);
     std::vector<std::string> ids;
