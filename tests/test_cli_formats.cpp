@@ -148,6 +148,7 @@ TEST(cli_formats, input_options_are_checked_against_the_format) {
             EXPECT_TRUE(contains(help.out, option)) << command << " " << option;
         }
     }
+    EXPECT_TRUE(contains(run_rastrum("--help").out, "convert"));
     const auto wrong_format = run_rastrum("survey '" + f.nwb + "' --mat-spikes spikes");
     EXPECT_EQ(wrong_format.exit_code, 2);
     EXPECT_TRUE(contains(wrong_format.err, "--mat-spikes applies to MAT-files")) << wrong_format.err;

@@ -94,13 +94,17 @@ TEST(NwbRead, Float32TimesIntegerIdsAndLabelsNarrowIndex) {
     }
 }
 
-TEST(NwbRead, FixedLengthAsciiLabels) {
+TEST(NwbRead, FixedAndVariableLengthAsciiAndUtf8Labels) {
     rastrum::recording rec = binary_fraction_recording();
     rec.stimulus = {"on", "off", "on"};
-    nwb_writing how;
-    how.fixed_length_labels = true;
-    how.ascii_labels = true;
-    expect_same_recording(read_recording_nwb(nwb_file(rec, how)), rec);
+    for (const bool fixed: {false, true}) {
+        for (const bool ascii: {false, true}) {
+            nwb_writing how;
+            how.fixed_length_labels = fixed;
+            how.ascii_labels = ascii;
+            expect_same_recording(read_recording_nwb(nwb_file(rec, how)), rec);
+        }
+    }
 }
 
 TEST(NwbRead, FloatLabelsAsShortestDecimals) {

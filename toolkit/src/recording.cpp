@@ -187,7 +187,8 @@ std::vector<std::size_t> select_trials(const recording& rec, const std::optional
     std::vector<std::size_t> chosen;
     if (stimulus && !rec.has_stimulus()) {
         throw usage_error("cannot select trials with stimulus " + quoted(*stimulus) + ": " + rec.source +
-                          " has no stimulus labels (nothing at " + rec.labels_place().object + ")" +
+                          " has no stimulus labels" +
+                          (rec.labels_place().object.empty() ? "" : " (nothing at " + rec.labels_place().object + ")") +
                           rec.origin.labels_hint);
     }
     for (std::size_t k = 0; k < rec.trial_count(); ++k) {

@@ -346,7 +346,7 @@ recording read_recording_mat(const std::string& path, const mat_choice& choice) 
                               std::to_string(rec.stimulus.size()));
         }
     } else {
-        rec.origin.labels = {"", "--mat-stimulus"};
+        rec.origin.labels = {"", ""};
         rec.origin.labels_hint = "; name the variable holding one label per trial with --mat-stimulus VAR";
     }
     validate(rec, mat_places(rec, spikes.name, choice.unit_ids.value_or(""), cells, start.name, stop.name, labels_name));

@@ -106,7 +106,14 @@ nlohmann::ordered_json contents_json(const source_contents& c) {
 std::string contents_text(const source_contents& c) {
     std::ostringstream s;
     if (c.groups.empty()) return s.str();
-    s << "\nin the file (for --intervals, --stimulus-column, --unit-column, --mat-* options):\n";
+    switch (c.format) {
+    case recording_format::nwb: s << "\nin the file (choose with --intervals, --stimulus-column, --unit-column):\n"; break;
+    case recording_format::mat:
+        s << "\nin the file (name them with --mat-spikes, --mat-trial-start, --mat-trial-stop, --mat-stimulus, "
+             "--mat-unit-ids):\n";
+        break;
+    default: s << "\ncolumns (--stimulus-column picks the label column of the trials):\n"; break;
+    }
     for (const auto& g: c.groups) {
         s << "  " << g.name << (g.kind.empty() ? "" : " (" + g.kind + ")") << "\n";
         for (const auto& [name, what]: g.items) {
