@@ -34,10 +34,14 @@ struct positional_argument {
 
 /// Parses argv for one subcommand: named options, required positional arguments, --help. Returns
 /// false when help was printed (the caller then returns 0). Option names must be spelled in full.
-/// Boost's parse errors become usage_error.
+/// Boost's parse errors become usage_error. `epilogue` follows the exit codes in --help.
+///
+/// Two options are left out of --help because `rastrum batch` asks them of its analyses:
+/// `--describe-options` prints `options` as JSON and returns false, and, for the kinds in
+/// analysis_kinds(), `--check-options` makes analyse_and_write return before reading anything.
 bool parse_command(int argc, char** argv, const std::string& command, const std::string& synopsis,
                    const po::options_description& options, const std::vector<positional_argument>& positional,
-                   po::variables_map& vm);
+                   po::variables_map& vm, const std::string& epilogue = "");
 
 /// A double option whose help shows its default as people write it (0.03, not 0.029999...).
 po::typed_value<double>* number_value(double* target);
@@ -49,6 +53,8 @@ std::uint64_t parse_whole_number(const std::string& text, const std::string& opt
 
 /// The whole command line as typed, for provenance.
 std::string joined_command_line(int argc, char** argv);
+/// The same for a list of arguments.
+std::string joined_command_line(const std::vector<std::string>& arguments);
 
 /// Checks, before any work is done, that each output path can be written: its folder exists, it is
 /// not an input, and no two outputs share a path. Throws usage_error.
@@ -59,6 +65,7 @@ struct output_choice {
     std::optional<std::string> json;
     std::optional<std::string> csv;
     bool quiet = false;
+    bool check_only = false;  // --check-options: every option is checked, nothing is read or written
 };
 
 /// Reads --json and --csv from `vm` and checks them against the input before any work is done.
