@@ -428,3 +428,25 @@ TEST(batch, sigterm_stops_the_running_task_and_the_manifest_says_what_finished) 
     EXPECT_EQ(status_counts(manifest_in(b.out)).count("pending"), 0u);
     EXPECT_EQ(result_files(b.out).size(), 8u);
 }
+
+TEST(batch, demo_plan_runs_from_a_copy_in_another_folder) {
+    const std::string folder = fresh_folder("batch-demo");
+    const std::string copy = folder + "/copied demo";
+    fs::create_directories(copy);
+    fs::create_directories(folder + "/elsewhere");
+    for (const auto& e: fs::directory_iterator(std::string(RASTRUM_SOURCE_DIR) + "/demo-recordings")) {
+        if (e.is_regular_file()) fs::copy_file(e.path(), copy / e.path().filename());
+    }
+    const auto r = run_rastrum_in(folder + "/elsewhere", "batch '../copied demo/demo-plan.ini' --threads 2");
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const json m = manifest_in(copy + "/demo-results");
+    EXPECT_EQ(status_counts(m), (std::map<std::string, int>{{"done", 3}}));
+    for (const auto& [input, analysis]: std::vector<std::pair<std::string, std::string>>{
+             {"flicker-tectum.h5", "direct"}, {"whisker-barrel.h5", "stiminfo.count"}, {"whisker-barrel.h5", "stiminfo.latency"}}) {
+        const json* t = find_task(m, input, analysis);
+        ASSERT_NE(t, nullptr) << input << " " << analysis;
+        const json result = json::parse(read_file(copy + "/demo-results/" + (*t)["outputs"][0]["path"].get<std::string>()));
+        EXPECT_EQ(result["input"]["path"], input) << "results name their input relative to the plan, not the machine";
+    }
+    EXPECT_TRUE(fs::is_empty(folder + "/elsewhere")) << "nothing lands in the working directory";
+}
