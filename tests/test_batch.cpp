@@ -450,3 +450,22 @@ TEST(batch, demo_plan_runs_from_a_copy_in_another_folder) {
     }
     EXPECT_TRUE(fs::is_empty(folder + "/elsewhere")) << "nothing lands in the working directory";
 }
+
+// The plan README shows is the bundled one, comments aside.
+TEST(batch, readme_shows_the_demo_plan) {
+    auto settings = [](const std::string& text) {
+        std::vector<std::string> lines;
+        std::istringstream in(text);
+        for (std::string line; std::getline(in, line);) {
+            line = line.substr(0, line.find('#'));
+            if (line.find_first_not_of(' ') != std::string::npos) lines.push_back(line);
+        }
+        return lines;
+    };
+    const std::string readme = read_file(std::string(RASTRUM_SOURCE_DIR) + "/README.md");
+    const auto section = readme.find("## Batch runs");
+    ASSERT_NE(section, std::string::npos);
+    const auto open = readme.find("```\n", section) + 4;
+    const std::string shown = readme.substr(open, readme.find("```", open) - open);
+    EXPECT_EQ(settings(shown), settings(read_file(std::string(RASTRUM_SOURCE_DIR) + "/demo-recordings/demo-plan.ini")));
+}
