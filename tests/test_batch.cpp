@@ -385,8 +385,17 @@ TEST(batch, sigkill_mid_run_leaves_only_whole_files_and_the_rerun_finishes) {
     }
     expect_only_whole_results(b.out);
 
+    // What a task or the manifest would leave when killed between writing and renaming; and a
+    // file of the user's, which the batch must not touch.
+    fs::create_directories(b.out + "/rec4");
+    for (const char* litter: {"/rec4/direct.json.tmp-99999-0", "/rec4/direct.csv.tmp-99999-1", "/manifest.json.tmp-99998-3"}) {
+        write_text(b.out + litter, "{\"partial");
+    }
+    write_text(b.out + "/rec4/my-notes.txt", "mine\n");
     const auto rerun = run_rastrum("batch '" + b.plan + "' --threads 1");
     EXPECT_EQ(rerun.exit_code, 0) << rerun.err;
+    EXPECT_EQ(read_file(b.out + "/rec4/my-notes.txt"), "mine\n");
+    fs::remove(b.out + "/rec4/my-notes.txt");
     const json m = manifest_in(b.out);
     EXPECT_EQ(m["run"]["state"], "finished");
     for (const auto& t: m["tasks"]) {

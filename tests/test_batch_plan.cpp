@@ -14,6 +14,9 @@
 #include <csignal>
 #include <filesystem>
 #include <fstream>
+#include <sys/wait.h>
+#include <thread>
+#include <unistd.h>
 
 using namespace rastrum;
 using rastrum::testing::fresh_folder;
@@ -222,4 +225,38 @@ TEST(child_process, a_signal_to_the_parent_stops_the_child) {
     EXPECT_EQ(stop.signal(), SIGTERM);
     EXPECT_TRUE(r.interrupted);
     EXPECT_EQ(r.signal, SIGTERM);
+}
+
+namespace {
+// Gone, or a zombie waiting for its new parent to reap it.
+bool process_gone(int pid) {
+    std::ifstream stat("/proc/" + std::to_string(pid) + "/stat");
+    std::string text;
+    if (!std::getline(stat, text)) return true;
+    const auto close = text.rfind(')');
+    return close != std::string::npos && close + 2 < text.size() && text[close + 2] == 'Z';
+}
+}  // namespace
+
+TEST(child_process, a_parent_killed_outright_takes_its_child_along) {
+    const std::string folder = fresh_folder("child-orphan");
+    const std::string pid_file = folder + "/pid";
+    // A stand-in for the batch: a process that runs a long child and is then killed with SIGKILL.
+    const pid_t parent = ::fork();
+    if (parent == 0) {
+        run_child("/bin/sh", {"sh", "-c", "echo $$ > '" + pid_file + ".tmp' && mv '" + pid_file + ".tmp' '" + pid_file +
+                                          "' && exec sleep 600"},
+                  "", nullptr);
+        ::_exit(0);
+    }
+    while (!fs::exists(pid_file)) std::this_thread::sleep_for(std::chrono::milliseconds(10));
+    const int child = std::stoi(rastrum::testing::read_file(pid_file));
+    EXPECT_FALSE(process_gone(child));
+    ::kill(parent, SIGKILL);
+    ::waitpid(parent, nullptr, 0);
+    // The kernel sends the parent-death signal as the parent exits; a minute is a bound for a
+    // stuck machine, not a speed claim (without the signal the child would sleep for ten).
+    for (int i = 0; i < 6000 && !process_gone(child); ++i) std::this_thread::sleep_for(std::chrono::milliseconds(10));
+    EXPECT_TRUE(process_gone(child)) << "the orphaned child is still running";
+    if (!process_gone(child)) ::kill(child, SIGKILL);
 }
