@@ -62,7 +62,7 @@ int run_direct(int argc, char** argv) {
     request.settings.subsets = parse_subset_estimator(subset_text);
     request.trials = trials_of(shared);
     check_direct_request(request);
-    const output_choice out = choose_outputs(shared, file);
+    const output_choice out = choose_outputs(shared, vm, file);
     return analyse_and_write(argc, argv, file, request.threads, out, [&](const recording& rec, provenance& origin) {
         std::vector<direct_record> records;
         {

@@ -96,7 +96,7 @@ int run_stiminfo(int argc, char** argv) {
     request.settings.seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
     request.threads = static_cast<unsigned>(parse_whole_number(threads_text, "--threads", 0, 1024));
     check_stiminfo_request(request);
-    const output_choice out = choose_outputs(shared, file);
+    const output_choice out = choose_outputs(shared, vm, file);
     return analyse_and_write(argc, argv, file, request.threads, out, [&](const recording& rec, provenance& origin) {
         std::vector<stiminfo_record> records;
         {

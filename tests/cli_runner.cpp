@@ -25,19 +25,56 @@ std::string fresh_folder(const std::string& name) {
     return folder;
 }
 
-process_result run_rastrum(const std::string& args) {
+namespace {
+
+std::string output_base() {
     static int serial = 0;
-    const std::string base = std::string(RASTRUM_TEST_TMP) + "/run-" + std::to_string(::getpid()) + "-" +
-                             std::to_string(serial++);
-    const std::string command = std::string("'") + RASTRUM_BINARY + "' " + args + " </dev/null >'" + base +
-                                ".out' 2>'" + base + ".err'";
-    const int status = std::system(command.c_str());
+    return std::string(RASTRUM_TEST_TMP) + "/run-" + std::to_string(::getpid()) + "-" + std::to_string(serial++);
+}
+
+// The shell command that runs rastrum with ARGS, its output going to BASE.out and BASE.err.
+std::string shell_command(const std::string& args, const std::string& base) {
+    return std::string("exec '") + RASTRUM_BINARY + "' " + args + " </dev/null >'" + base + ".out' 2>'" + base + ".err'";
+}
+
+process_result collect(int status, const std::string& base) {
     process_result r;
     r.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
     r.out = read_file(base + ".out");
     r.err = read_file(base + ".err");
     std::filesystem::remove(base + ".out");
     std::filesystem::remove(base + ".err");
+    return r;
+}
+
+}  // namespace
+
+process_result run_rastrum(const std::string& args) {
+    const std::string base = output_base();
+    return collect(std::system(shell_command(args, base).c_str()), base);
+}
+
+process_result run_rastrum_in(const std::string& folder, const std::string& args) {
+    const std::string base = output_base();
+    return collect(std::system(("cd '" + folder + "' && " + shell_command(args, base)).c_str()), base);
+}
+
+background_rastrum start_rastrum(const std::string& args) {
+    background_rastrum run{0, output_base()};
+    const std::string command = shell_command(args, run.base);
+    run.pid = ::fork();
+    if (run.pid == 0) {
+        ::execl("/bin/sh", "sh", "-c", command.c_str(), static_cast<char*>(nullptr));
+        ::_exit(127);
+    }
+    return run;
+}
+
+process_result finish_rastrum(const background_rastrum& run) {
+    int status = 0;
+    ::waitpid(run.pid, &status, 0);
+    process_result r = collect(status, run.base);
+    if (WIFSIGNALED(status)) r.exit_code = 128 + WTERMSIG(status);
     return r;
 }
 
