@@ -1,6 +1,9 @@
 #include "command_line.hpp"
 #include "commands.hpp"
 
+#include "progress_display.hpp"
+
+#include <rastrum/curves_output.hpp>
 #include <rastrum/direct_results.hpp>
 #include <rastrum/errors.hpp>
 
@@ -10,11 +13,11 @@ namespace rastrum::app {
 
 int run_direct(int argc, char** argv) {
     const direct_request defaults;
-    std::string file, bin_text, letters_text, fit_text, stimulus, json_out, csv_out, subset_text;
+    std::string file, bin_text, letters_text, fit_text, stimulus, subset_text;
+    shared_options shared;
     std::string splits_text = std::to_string(defaults.settings.splits), seed_text = std::to_string(defaults.settings.seed),
                 threads_text = "0", rotations_text = "0";
     direct_request request;
-    bool quiet = false;
     po::options_description options("Options");
     options.add_options()
         ("unit", po::value(&request.units)->composing(), "analyse this unit (repeat for several); every unit when absent")
@@ -38,14 +41,13 @@ int run_direct(int argc, char** argv) {
          "rate and a permutation p-value; costs N extra estimates")
         ("seed", po::value(&seed_text)->default_value(seed_text), "seed of the random splits (a whole number)")
         ("threads", po::value(&threads_text)->default_value(threads_text),
-         "worker threads (0: one per core); results do not depend on it")
-        ("json", po::value(&json_out), "write results as JSON to this file ('-' for stdout instead of the table)")
-        ("csv", po::value(&csv_out), "write tidy CSV to this file: one row per unit, bin width and word length")
-        ("quiet,q", po::bool_switch(&quiet), "no table and no progress lines");
+         "worker threads (0: one per core); results do not depend on it");
+    add_shared_options(options, shared, "one row per unit, bin width and word length");
     po::variables_map vm;
     if (!parse_command(argc, argv, "direct",
                        "FILE --bin-ms B[,B...] --letters A-B [--unit ID]... [--stimulus LABEL] [--binary] "
-                       "[--fit-letters A-B] [--seed N] [--threads N] [--json OUT] [--csv OUT]",
+                       "[--fit-letters A-B] [--trials LIST] [--exclude-trials LIST] [--seed N] [--threads N] [--json OUT] [--csv OUT] "
+                       "[--curves-csv OUT] [--h5 OUT]",
                        options, {{"file", "FILE", "the recording (HDF5, native layout)", &file}}, vm)) {
         return 0;
     }
@@ -58,13 +60,21 @@ int run_direct(int argc, char** argv) {
     if (vm.count("fit-letters")) request.settings.fit_letters = parse_int_range(fit_text, "--fit-letters");
     if (vm.count("stimulus")) request.stimulus = stimulus;
     request.settings.subsets = parse_subset_estimator(subset_text);
+    request.trials = trials_of(shared);
     check_direct_request(request);
-    const output_choice out = choose_outputs(vm, file, quiet);
+    const output_choice out = choose_outputs(shared, file);
     return analyse_and_write(argc, argv, file, request.threads, out, [&](const recording& rec, provenance& origin) {
-        const auto records = run_direct(rec, request);
+        std::vector<direct_record> records;
+        {
+            progress_display shown(parse_progress_style(out.progress), out.quiet, "direct");
+            request.progress = shown.callback();
+            records = run_direct(rec, request);
+        }
         origin.finished_utc = utc_now();
-        return rendered_results{direct_json(records, request, origin).dump(2) + "\n", direct_csv(records),
-                                direct_table(records, request)};
+        const auto result = direct_json(records, request, origin);
+        const auto curves = direct_curves(records);
+        return rendered_results{result.dump(2) + "\n", direct_csv(records), direct_table(records, request),
+                                curves_csv(curves, "direct"), h5_writer(result, curves), provenance_of(result)};
     });
 }
 

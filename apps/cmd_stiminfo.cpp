@@ -2,6 +2,9 @@
 #include "commands.hpp"
 
 #include <rastrum/errors.hpp>
+#include "progress_display.hpp"
+
+#include <rastrum/curves_output.hpp>
 #include <rastrum/stiminfo_results.hpp>
 
 #include <iostream>
@@ -27,10 +30,11 @@ int run_stiminfo(int argc, char** argv) {
                                                    shuffles_text = std::to_string(defaults.null_shuffles),
                                                    bootstrap_text = std::to_string(defaults.bootstrap),
                                                    splits_text = std::to_string(defaults.settings.splits), seed_text = "1",
-                                                   threads_text = "0", json_out, csv_out;
+                                                   threads_text = "0";
+    shared_options shared;
+    std::vector<std::string> stimulus_texts;
     std::vector<std::string> population_texts;
     std::string population_estimator_text = info_estimator_name(defaults.population_estimator);
-    bool quiet = false;
     po::options_description options("Options");
     options.add_options()
         ("unit", po::value(&request.units)->composing(),
@@ -46,6 +50,7 @@ int run_stiminfo(int argc, char** argv) {
         ("bin-ms", po::value(&bin_text)->default_value(bin_text), "letter width for the word and latency codes, in ms")
         ("binary", po::bool_switch(&request.response.binary), "word code: letters are spike / no spike")
         ("stimuli", po::value(&stimuli_text), "only these labels, comma-separated; every label when absent")
+        ("stimulus", po::value(&stimulus_texts)->composing(), "only this label (repeat for several; adds to --stimuli)")
         ("estimators", po::value(&estimators_text)->default_value(estimators_text),
          "comma-separated: plug-in, miller-madow, jackknife, panzeri-treves, quadratic-extrapolation, nsb; or all")
         ("null-shuffles", po::value(&shuffles_text)->default_value(shuffles_text),
@@ -56,14 +61,13 @@ int run_stiminfo(int argc, char** argv) {
         ("slide-ms", po::value(&slide_text), "W:S: instead of one window, windows of W ms in steps of S ms across --window-ms (the time course; one record each, each with its own null and interval)")
         ("splits", po::value(&splits_text)->default_value(splits_text), "quadratic-extrapolation: random stratified splits")
         ("seed", po::value(&seed_text)->default_value(seed_text), "seed of shuffles, resamples and splits (a whole number)")
-        ("threads", po::value(&threads_text)->default_value(threads_text), "worker threads (0: one per core); results do not depend on it")
-        ("json", po::value(&json_out), "write results as JSON to this file ('-' for stdout instead of the table)")
-        ("csv", po::value(&csv_out), "write tidy CSV to this file: one row per record and estimator")
-        ("quiet,q", po::bool_switch(&quiet), "no table and no status lines");
+        ("threads", po::value(&threads_text)->default_value(threads_text), "worker threads (0: one per core); results do not depend on it");
+    add_shared_options(options, shared, "one row per record (unit or population, and window) and estimator");
     po::variables_map vm;
     if (!parse_command(argc, argv, "stiminfo",
                        "FILE --window-ms A:B --code count|word|latency [--bin-ms B] [--binary] [--unit ID]... [--population ID,ID,...]... "
-                       "[--estimators LIST] [--null-shuffles N] [--slide-ms W:S] [--seed N] [--threads N] [--json OUT] [--csv OUT]",
+                       "[--estimators LIST] [--null-shuffles N] [--slide-ms W:S] [--trials LIST] [--exclude-trials LIST] [--seed N] [--threads N] "
+                       "[--json OUT] [--csv OUT] [--curves-csv OUT] [--h5 OUT]",
                        options, {{"file", "FILE", "the recording (HDF5, native layout) with /trials/stimulus labels", &file}},
                        vm)) {
         return 0;
@@ -77,6 +81,8 @@ int run_stiminfo(int argc, char** argv) {
     request.response.bin_width = bins[0] / 1000;
     if (vm.count("slide-ms")) request.slide = parse_ms_pair(slide_text, "--slide-ms");
     if (vm.count("stimuli")) request.stimuli = parse_text_list(stimuli_text, "--stimuli");
+    request.stimuli.insert(request.stimuli.end(), stimulus_texts.begin(), stimulus_texts.end());
+    request.trials = trials_of(shared);
     if (estimators_text != "all") {
         request.estimators.clear();
         for (const auto& name: parse_text_list(estimators_text, "--estimators")) request.estimators.push_back(parse_info_estimator(name));
@@ -90,12 +96,19 @@ int run_stiminfo(int argc, char** argv) {
     request.settings.seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
     request.threads = static_cast<unsigned>(parse_whole_number(threads_text, "--threads", 0, 1024));
     check_stiminfo_request(request);
-    const output_choice out = choose_outputs(vm, file, quiet);
+    const output_choice out = choose_outputs(shared, file);
     return analyse_and_write(argc, argv, file, request.threads, out, [&](const recording& rec, provenance& origin) {
-        const auto records = run_stiminfo(rec, request);
+        std::vector<stiminfo_record> records;
+        {
+            progress_display shown(parse_progress_style(out.progress), out.quiet, "stiminfo");
+            request.progress = shown.callback();
+            records = run_stiminfo(rec, request);
+        }
         origin.finished_utc = utc_now();
-        return rendered_results{stiminfo_json(records, request, origin).dump(2) + "\n", stiminfo_csv(records, request),
-                                stiminfo_table(records, request)};
+        const auto result = stiminfo_json(records, request, origin);
+        const auto curves = stiminfo_curves(records, request);
+        return rendered_results{result.dump(2) + "\n", stiminfo_csv(records, request), stiminfo_table(records, request),
+                                curves_csv(curves, "stiminfo"), h5_writer(result, curves), provenance_of(result)};
     });
 }
 

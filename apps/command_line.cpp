@@ -1,10 +1,13 @@
 #include "command_line.hpp"
+#include "progress_display.hpp"
 
 #include <rastrum/atomic_file.hpp>
+#include <rastrum/curves_output.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/parallel.hpp>
 #include <rastrum/recording_hdf5.hpp>
 #include <rastrum/sha256.hpp>
+#include <rastrum/version.hpp>
 #include <rastrum/format.hpp>
 
 #include <cmath>
@@ -163,14 +166,60 @@ void check_output_paths(const std::vector<std::optional<std::string>>& outputs, 
     }
 }
 
-output_choice choose_outputs(const po::variables_map& vm, const std::string& input, bool quiet) {
+void add_shared_options(po::options_description& options, shared_options& shared, const std::string& csv_rows) {
+    options.add_options()
+        ("trials", po::value(&shared.trials),
+         "only these trials: indices from 0 (as in /trials) and ranges, e.g. 0-49,60; every trial when absent")
+        ("exclude-trials", po::value(&shared.excluded_trials), "leave out these trials (same form as --trials)")
+        ("json", po::value(&shared.json), "write results as JSON to this file ('-' for stdout instead of the table)")
+        ("csv", po::value(&shared.csv), ("write tidy CSV to this file: " + csv_rows).c_str())
+        ("curves-csv", po::value(&shared.curves_csv),
+         "write the curves (the JSON's 'curves') as tidy CSV to this file: one row per point")
+        ("h5", po::value(&shared.h5),
+         "write an HDF5 results file: the whole result and every curve, one group per analysis and unit")
+        ("progress", po::value(&shared.progress)->default_value(shared.progress),
+         "progress on stderr: auto (a bar on a terminal, nothing otherwise), bar, plain (a line every few seconds) or none")
+        ("quiet,q", po::bool_switch(&shared.quiet), "no table, no progress and no status lines");
+}
+
+trial_selection trials_of(const shared_options& shared) {
+    trial_selection s;
+    if (!shared.trials.empty()) s.only = parse_trial_list(shared.trials, "--trials");
+    if (!shared.excluded_trials.empty()) s.excluded = parse_trial_list(shared.excluded_trials, "--exclude-trials");
+    return s;
+}
+
+output_choice choose_outputs(const shared_options& shared, const std::string& input) {
     output_choice out;
-    out.quiet = quiet;
-    if (vm.count("json")) out.json = vm["json"].as<std::string>();
-    if (vm.count("csv")) out.csv = vm["csv"].as<std::string>();
-    if (out.csv && *out.csv == "-") throw usage_error("--csv needs a file name");
-    check_output_paths({out.json, out.csv}, {input});
+    out.quiet = shared.quiet;
+    auto asked = [](const std::string& path) { return path.empty() ? std::nullopt : std::optional<std::string>(path); };
+    out.json = asked(shared.json);
+    out.csv = asked(shared.csv);
+    out.curves_csv = asked(shared.curves_csv);
+    out.h5 = asked(shared.h5);
+    out.progress = shared.progress;
+    parse_progress_style(out.progress);
+    for (const auto& [path, option]: {std::make_pair(out.csv, "--csv"), std::make_pair(out.curves_csv, "--curves-csv"),
+                                      std::make_pair(out.h5, "--h5")}) {
+        if (path && *path == "-") throw usage_error(std::string(option) + " needs a file name");
+    }
+    check_output_paths({out.json, out.csv, out.curves_csv, out.h5}, {input});
     return out;
+}
+
+std::string provenance_of(const nlohmann::ordered_json& result) {
+    nlohmann::ordered_json head;
+    for (const auto& [key, value]: result.items()) {
+        if (key != "records" && key != "curves") head[key] = value;
+    }
+    return head.dump();
+}
+
+std::function<void(const std::string&)> h5_writer(nlohmann::ordered_json result, std::vector<curve_series> curves) {
+    result.erase("curves");
+    return [result = std::move(result), curves = std::move(curves)](const std::string& path) {
+        write_results_hdf5(path, result, curves);
+    };
 }
 
 int analyse_and_write(int argc, char** argv, const std::string& file, unsigned threads, const output_choice& out,
@@ -187,12 +236,29 @@ int analyse_and_write(int argc, char** argv, const std::string& file, unsigned t
     const rendered_results results = analyse(rec, origin);
     std::vector<std::pair<std::string, std::string>> files;
     if (out.json && *out.json != "-") files.emplace_back(*out.json, results.json);
-    if (out.csv) files.emplace_back(*out.csv, results.csv);
+    // One comment line of provenance, so a CSV file alone still says what made it (pandas reads
+    // past it with comment='#', R with comment.char = '#').
+    const std::string origin_line = "# " + results.provenance_json + "\n";
+    if (out.csv) files.emplace_back(*out.csv, origin_line + results.csv);
+    if (out.curves_csv) files.emplace_back(*out.curves_csv, origin_line + results.curves_csv);
+    // The HDF5 file is made under a temporary name first and renamed last, so a failure anywhere
+    // leaves none of the outputs changed.
+    std::optional<atomic_file> h5;
+    if (out.h5) {
+        h5.emplace(*out.h5);
+        results.write_h5(h5->temporary_path());
+    }
     write_texts_atomically(files);
+    if (h5) {
+        h5->commit();
+        files.emplace_back(*out.h5, "");
+    }
     if (out.json && *out.json == "-") {
         std::cout << results.json;
     } else if (!out.quiet) {
-        std::cout << results.table;
+        std::cout << results.table << "\nMade by rastrum " << version() << ": " << origin.command_line << "\n(input sha256 "
+                  << origin.input_sha256 << ", " << origin.threads << (origin.threads == 1 ? " thread" : " threads")
+                  << ", " << origin.started_utc << " to " << origin.finished_utc << ")\n";
     }
     for (const auto& [path, text]: files) note(out.quiet, "wrote " + path);
     return 0;

@@ -1,6 +1,7 @@
 #pragma once
 // What every subcommand shares: parsing of option values, the usage-error convention, and
 // writing outputs so that a failure leaves nothing half-written.
+#include <rastrum/curves.hpp>
 #include <rastrum/provenance.hpp>
 #include <rastrum/recording.hpp>
 
@@ -54,22 +55,58 @@ std::string joined_command_line(int argc, char** argv);
 /// not an input, and no two outputs share a path. Throws usage_error.
 void check_output_paths(const std::vector<std::optional<std::string>>& outputs, const std::vector<std::string>& inputs);
 
-/// Where an analysis writes: --json (a file or '-' for stdout), --csv, and whether to stay quiet.
-struct output_choice {
-    std::optional<std::string> json;
-    std::optional<std::string> csv;
+/// The options every analysis takes: which trials, where results go, and how it talks to people.
+struct shared_options {
+    std::string trials;
+    std::string excluded_trials;
+    std::string json;  // empty: not asked for
+    std::string csv;
+    std::string curves_csv;
+    std::string h5;
+    std::string progress = "auto";
     bool quiet = false;
 };
 
-/// Reads --json and --csv from `vm` and checks them against the input before any work is done.
-output_choice choose_outputs(const po::variables_map& vm, const std::string& input, bool quiet);
+/// Declares --trials, --exclude-trials, --json, --csv (`csv_rows` says what a row is), --curves-csv,
+/// --h5, --progress and --quiet, stored in `shared`.
+void add_shared_options(po::options_description& options, shared_options& shared, const std::string& csv_rows);
+
+/// --trials and --exclude-trials as a selection (everything when neither is given).
+trial_selection trials_of(const shared_options& shared);
+
+/// Where an analysis writes: --json (a file or '-' for stdout), --csv, --curves-csv, --h5, and how
+/// it reports progress.
+struct output_choice {
+    std::optional<std::string> json;
+    std::optional<std::string> csv;
+    std::optional<std::string> curves_csv;
+    std::optional<std::string> h5;
+    bool quiet = false;
+    std::string progress = "auto";
+};
+
+/// Checks the outputs of `shared` against the input before any work is done.
+output_choice choose_outputs(const shared_options& shared, const std::string& input);
 
 /// What an analysis produces for its outputs.
 struct rendered_results {
     std::string json;
     std::string csv;
     std::string table;
+    std::string curves_csv;
+    /// Writes the HDF5 results file at the path given (a temporary, renamed when all outputs are written).
+    std::function<void(const std::string&)> write_h5;
+    /// Where the result came from (tool, version, input, parameters, run) as one JSON object; CSV
+    /// outputs start with it as a '#' comment line.
+    std::string provenance_json;
 };
+
+/// The provenance part of a result (every key but records and curves), as compact JSON.
+std::string provenance_of(const nlohmann::ordered_json& result);
+
+/// Writes `result` (without its curves, which get datasets of their own) and `curves` as an HDF5
+/// results file, when called with the path.
+std::function<void(const std::string&)> h5_writer(nlohmann::ordered_json result, std::vector<curve_series> curves);
 
 /// The part every analysis command shares: reads the recording (loader warnings to stderr), fills
 /// the provenance, lets `analyse` run and render (it sets `finished_utc`), writes the outputs all

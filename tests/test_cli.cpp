@@ -95,10 +95,15 @@ TEST(cli, direct_writes_stable_json_and_tidy_csv) {
         EXPECT_TRUE(rec["by_letters"][0].contains(key)) << key;
     }
     EXPECT_FALSE(rec["warnings"].empty()) << "40 trials must carry a caution";
-    // Tidy CSV: a header and one row per (unit, bin width, word length).
+    // Tidy CSV: a provenance comment, a header and one row per (unit, bin width, word length).
     const std::string csv = read_file(folder + "/d.csv");
-    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 1 + 2 * 2 * 6);
-    EXPECT_EQ(csv.rfind("unit,stimulus,bin_ms,", 0), 0u);
+    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 2 + 2 * 2 * 6);
+    ASSERT_EQ(csv.rfind("# {", 0), 0u);
+    const json origin = json::parse(csv.substr(2, csv.find('\n') - 2));
+    EXPECT_EQ(origin["input"]["sha256"], d["input"]["sha256"]);
+    EXPECT_EQ(origin["parameters"], d["parameters"]);
+    EXPECT_TRUE(origin["run"].contains("started_utc"));
+    EXPECT_NE(csv.find("\nunit,stimulus,bin_ms,"), std::string::npos);
 }
 
 TEST(cli, same_results_for_one_and_two_threads) {
@@ -250,7 +255,7 @@ TEST(cli, stiminfo_writes_stable_json_and_refuses_bad_labels_and_windows) {
     EXPECT_EQ(rec0["trials"], 120);
     EXPECT_EQ(rec0["null"]["shuffles"], 50);
     const std::string csv = read_file(folder + "/s.csv");
-    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 1 + 6);  // header + one row per estimator
+    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 2 + 6);  // provenance, header, one row per estimator
 
     const auto bad_label = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --stimuli a,zz --json " + folder + "/x.json");
     EXPECT_EQ(bad_label.exit_code, 2);
@@ -291,4 +296,99 @@ TEST(cli, stiminfo_writes_stable_json_and_refuses_bad_labels_and_windows) {
     EXPECT_EQ(p["records"][2]["unit"], "u1+u2");
     EXPECT_EQ(p["records"][2]["population"]["ci95_bits"]["synergy"].size(), 2u);
     EXPECT_EQ(run_rastrum("stiminfo " + pair + " --window-ms 0:500 --code count --population u1,u1").exit_code, 2);
+}
+
+// Trial selection for scripting repeated-trial subsets (design): --trials and --exclude-trials pick
+// trials by index from 0, in both analyses; an index past the last trial is a usage error before
+// any output is written.
+TEST(cli, trials_are_selected_by_index_and_label) {
+    const std::string folder = fresh_folder("cli-trials");
+    const auto first_half = run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --trials 0-19 "
+                                        "--exclude-trials 3,7 --json " + folder + "/d.json");
+    ASSERT_EQ(first_half.exit_code, 0) << first_half.err;
+    const json d = json::parse(read_file(folder + "/d.json"));
+    EXPECT_EQ(d["records"][0]["trials"], 18);
+    EXPECT_EQ(d["parameters"]["trials"].size(), 20u);
+    EXPECT_EQ(d["parameters"]["excluded_trials"], json::array({3, 7}));
+    const auto past_end = run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --trials 0-40 --json " +
+                                      folder + "/x.json");
+    EXPECT_EQ(past_end.exit_code, 2);
+    EXPECT_NE(past_end.err.find("trial 40 does not exist"), std::string::npos) << past_end.err;
+    EXPECT_EQ(run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --trials 5-2").exit_code, 2);
+    EXPECT_EQ(run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --trials -1").exit_code, 2);
+    EXPECT_FALSE(file_exists(folder + "/x.json"));
+
+    const std::string labelled = folder + "/c.h5";
+    ASSERT_EQ(run_rastrum("synth conditions --out " + labelled + " --duration-s 0.5 --means 2,4,6,9").exit_code, 0);
+    // Trials alternate labels a, b, c, d: the first 60 trials hold 15 of each.
+    const auto s = run_rastrum("stiminfo " + labelled + " --window-ms 0:500 --code count --trials 0-59 --stimulus a "
+                               "--stimulus c --null-shuffles 10 --bootstrap 0 --json " + folder + "/s.json");
+    ASSERT_EQ(s.exit_code, 0) << s.err;
+    const json j = json::parse(read_file(folder + "/s.json"));
+    EXPECT_EQ(j["records"][0]["stimuli"], 2);
+    EXPECT_EQ(j["records"][0]["trials"], 30);
+}
+
+// Curves as tidy CSV and the HDF5 results file come out with the other outputs, all or none (design).
+TEST(cli, curves_csv_and_hdf5_results_are_written_together) {
+    const std::string folder = fresh_folder("cli-curves");
+    const auto r = run_rastrum("direct " + small_recording() + " --bin-ms 2,4 --letters 1-4 --json " + folder +
+                               "/d.json --curves-csv " + folder + "/curves.csv --h5 " + folder + "/d.h5");
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const json d = json::parse(read_file(folder + "/d.json"));
+    ASSERT_TRUE(d["curves"].is_array());
+    std::size_t points = 0;
+    for (const auto& c: d["curves"]) points += c["x"]["values"].size();
+    const std::string csv = read_file(folder + "/curves.csv");
+    EXPECT_EQ(static_cast<std::size_t>(std::count(csv.begin(), csv.end(), '\n')), 2 + points);
+    EXPECT_TRUE(file_exists(folder + "/d.h5"));
+    // A bad input leaves every earlier output as it was, the HDF5 file included.
+    const std::string before = read_file(folder + "/d.h5");
+    {
+        std::ofstream(folder + "/bad.h5") << "not HDF5\n";
+    }
+    EXPECT_EQ(run_rastrum("direct " + folder + "/bad.h5 --bin-ms 2 --letters 1-4 --h5 " + folder + "/d.h5").exit_code, 3);
+    EXPECT_EQ(read_file(folder + "/d.h5"), before);
+    EXPECT_EQ(run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --h5 " + folder + "/no/d.h5").exit_code, 2);
+    for (const auto& entry: std::filesystem::directory_iterator(folder)) {
+        EXPECT_EQ(entry.path().string().find(".tmp-"), std::string::npos) << entry.path();
+    }
+}
+
+// Progress (design): in a pipe nothing by default; --progress plain gives plain lines (the last one
+// at the end); --quiet silences it; results go to stdout untouched either way.
+TEST(cli, progress_lines_only_when_asked_for_off_a_terminal) {
+    const std::string args = "direct " + small_recording() + " --bin-ms 2,4 --letters 1-4";
+    const auto automatic = run_rastrum(args);
+    ASSERT_EQ(automatic.exit_code, 0);
+    EXPECT_EQ(automatic.err.find("done"), std::string::npos) << automatic.err;
+    EXPECT_EQ(automatic.err.find('\r'), std::string::npos);
+    const auto plain = run_rastrum(args + " --progress plain");
+    ASSERT_EQ(plain.exit_code, 0);
+    EXPECT_NE(plain.err.find("direct: 4/4 done"), std::string::npos) << plain.err;
+    auto table = [](const std::string& out) { return out.substr(0, out.find("\nMade by rastrum")); };
+    EXPECT_EQ(table(plain.out), table(automatic.out));
+    const auto quiet = run_rastrum(args + " --progress plain --quiet --json " + fresh_folder("cli-progress") + "/d.json");
+    EXPECT_EQ(quiet.err, "");
+    EXPECT_EQ(run_rastrum(args + " --progress loud").exit_code, 2);
+}
+
+// On a terminal (a real pseudo-terminal from util-linux `script`), the default shows a bar with
+// counts and time left on stderr, and --quiet silences it (design).
+TEST(cli, progress_bar_on_a_terminal) {
+    if (std::system("command -v script >/dev/null 2>&1") != 0) GTEST_SKIP() << "util-linux script is not installed";
+    const std::string folder = fresh_folder("cli-terminal");
+    auto on_terminal = [&](const std::string& extra) {
+        const std::string log = folder + "/terminal.log";
+        const std::string inner = std::string("'") + RASTRUM_BINARY + "' direct '" + small_recording() +
+                                  "' --bin-ms 2,4 --letters 1-4 --json '" + folder + "/d.json' " + extra;
+        const std::string command = "script -qec \"" + inner + "\" /dev/null >'" + log + "' 2>&1";
+        EXPECT_EQ(std::system(command.c_str()), 0) << command;
+        return read_file(log);
+    };
+    const std::string shown = on_terminal("");
+    EXPECT_NE(shown.find("direct ["), std::string::npos) << shown;
+    EXPECT_NE(shown.find("4/4"), std::string::npos) << shown;
+    const std::string quiet = on_terminal("--quiet");
+    EXPECT_EQ(quiet.find("direct ["), std::string::npos) << quiet;
 }

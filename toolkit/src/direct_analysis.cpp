@@ -51,7 +51,7 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
     } else {
         for (const auto& id: request.units) units.push_back(&rec.unit(id));
     }
-    const std::vector<std::size_t> trials = select_trials(rec, request.stimulus);
+    const std::vector<std::size_t> trials = select_trials(rec, request.stimulus, request.trials);
     if (trials.size() < 2) {
         throw insufficient_data(rec.source + ": the direct method needs repeated trials; " + std::to_string(trials.size()) +
                                 " selected");
@@ -130,7 +130,7 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
             r.warnings.push_back("binary letters dropped " + std::to_string(spikes - letters.spikes) +
                                  " spikes that shared a bin with another");
         }
-    });
+    }, request.progress);
     return records;
 }
 

@@ -122,7 +122,7 @@ private:
 
 /// Extrapolation to infinite data from all trials, the halves and the quarters of every split;
 /// each level weighs as much as the others in the fit.
-double extrapolate_all(const std::vector<double>& h, const std::vector<std::vector<std::size_t>>& sizes) {
+inverse_size_fit extrapolate_all(const std::vector<double>& h, const std::vector<std::vector<std::size_t>>& sizes) {
     std::vector<double> x, y, w;
     const std::size_t splits = sizes.size();
     x.push_back(1.0 / static_cast<double>(sizes[0][0]));
@@ -139,7 +139,28 @@ double extrapolate_all(const std::vector<double>& h, const std::vector<std::vect
             }
         }
     }
-    return fit_inverse_size(x, y, w).at_infinity;
+    return fit_inverse_size(x, y, w);
+}
+
+/// Level means of one estimator's subset entropies (all trials, halves, quarters, eighths).
+void level_means(const std::vector<double>& h, const std::vector<std::vector<std::size_t>>& sizes,
+                 std::vector<double>& inverse_trials, std::vector<double>& bits) {
+    inverse_trials.clear();
+    bits.clear();
+    for (int level = 0; level < 4; ++level) {
+        const int blocks = 1 << level;
+        double x = 0, y = 0, n = 0;
+        for (std::size_t s = 0; s < sizes.size(); ++s) {
+            for (int b = 0; b < blocks; ++b) {
+                const int i = subset_index(level, b);
+                x += 1.0 / static_cast<double>(sizes[s][static_cast<std::size_t>(i)]);
+                y += h[s * nested_subsets + static_cast<std::size_t>(i)];
+                n += 1;
+            }
+        }
+        inverse_trials.push_back(x / n);
+        bits.push_back(y / n);
+    }
 }
 
 /// The same extrapolation for one half of one split, from that half, its quarters and its eighths.
@@ -174,6 +195,7 @@ double sd_of(const std::vector<double>& v) {
 /// The rate at infinite word length: total and noise entropy rates fitted linearly in 1/L.
 struct rate_fit {
     double total = 0, noise = 0, info = 0, info_se = 0;
+    line_fit total_line, noise_line;
 };
 
 rate_fit fit_rates(const std::vector<double>& total_bits, const std::vector<double>& noise_bits, int first_letters,
@@ -187,8 +209,10 @@ rate_fit fit_rates(const std::vector<double>& total_bits, const std::vector<doub
         yi.push_back((total_bits[i] - noise_bits[i]) / (L * bin_width));
     }
     rate_fit r;
-    r.total = fit_line(x, yt).intercept;
-    r.noise = fit_line(x, yn).intercept;
+    r.total_line = fit_line(x, yt);
+    r.noise_line = fit_line(x, yn);
+    r.total = r.total_line.intercept;
+    r.noise = r.noise_line.intercept;
     const line_fit info = fit_line(x, yi);
     r.info = info.intercept;
     r.info_se = info.intercept_se;
@@ -255,10 +279,16 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
         le.noise_miller_madow_bits = e.noise[miller_madow][0];
         std::array<double, subset_estimator_count> total_inf{}, noise_inf{};
         for (std::size_t m = 0; m < static_cast<std::size_t>(subset_estimator_count); ++m) {
-            total_inf[m] = extrapolate_all(e.total[m], sizes);
-            noise_inf[m] = extrapolate_all(e.noise[m], sizes);
+            total_inf[m] = extrapolate_all(e.total[m], sizes).at_infinity;
+            noise_inf[m] = extrapolate_all(e.noise[m], sizes).at_infinity;
             le.info_bits_by_estimator[m] = total_inf[m] - noise_inf[m];
         }
+        le.data_size.total_fit = extrapolate_all(e.total[primary], sizes);
+        le.data_size.noise_fit = extrapolate_all(e.noise[primary], sizes);
+        std::vector<double> unused;
+        level_means(e.total[primary], sizes, le.data_size.inverse_trials, le.data_size.total_bits);
+        level_means(e.noise[primary], sizes, unused, le.data_size.noise_bits);
+        le.data_size.in_fit = {true, true, true, false};
         le.total_bits = total_inf[primary];
         le.noise_bits = noise_inf[primary];
         le.info_bits = le.total_bits - le.noise_bits;
@@ -322,6 +352,8 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
     out.total_rate = all.total;
     out.noise_rate = all.noise;
     out.info_rate = all.info;
+    out.total_rate_fit = all.total_line;
+    out.noise_rate_fit = all.noise_line;
     for (std::size_t i = 0; i < n_halves; ++i) {
         out.half_info_rates.push_back(
             fit_rates(slice(total_half[i], from, to), slice(noise_half[i], from, to), out.fit_letters.first, bin_width).info);

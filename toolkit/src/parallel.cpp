@@ -47,4 +47,19 @@ void parallel_for(std::size_t n, unsigned threads, const std::function<void(std:
     if (first_error) std::rethrow_exception(first_error);
 }
 
+void parallel_for(std::size_t n, unsigned threads, const std::function<void(std::size_t)>& task,
+                  const progress_callback& progress) {
+    if (!progress) {
+        parallel_for(n, threads, task);
+        return;
+    }
+    std::mutex told;
+    std::size_t done = 0;
+    parallel_for(n, threads, [&](std::size_t i) {
+        task(i);
+        std::lock_guard<std::mutex> lock(told);
+        progress(++done, n);
+    });
+}
+
 }  // namespace rastrum

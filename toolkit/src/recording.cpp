@@ -166,28 +166,69 @@ std::size_t spikes_outside_trials(const std::vector<seconds>& spikes, const reco
     return spikes.size() - inside;
 }
 
-std::vector<std::size_t> select_trials(const recording& rec, const std::optional<std::string>& stimulus) {
-    std::vector<std::size_t> chosen;
-    if (!stimulus) {
-        chosen.resize(rec.trial_count());
-        for (std::size_t k = 0; k < chosen.size(); ++k) chosen[k] = k;
-        return chosen;
+std::vector<std::size_t> select_trials(const recording& rec, const std::optional<std::string>& stimulus,
+                                       const trial_selection& selection) {
+    std::vector<bool> allowed(rec.trial_count(), !selection.only);
+    auto check = [&](std::size_t k, const char* option) {
+        if (k >= rec.trial_count()) {
+            throw usage_error(std::string(option) + ": trial " + std::to_string(k) + " does not exist; " + rec.source +
+                              " has trials 0-" + std::to_string(rec.trial_count() - 1));
+        }
+    };
+    if (selection.only) {
+        for (std::size_t k: *selection.only) {
+            check(k, "--trials");
+            allowed[k] = true;
+        }
     }
-    if (!rec.has_stimulus()) {
+    for (std::size_t k: selection.excluded) {
+        check(k, "--exclude-trials");
+        allowed[k] = false;
+    }
+    std::vector<std::size_t> chosen;
+    if (stimulus && !rec.has_stimulus()) {
         throw usage_error("cannot select trials with stimulus " + quoted(*stimulus) + ": " + rec.source +
                           " has no stimulus labels (no /trials/stimulus)");
     }
-    for (std::size_t k = 0; k < rec.stimulus.size(); ++k) {
-        if (rec.stimulus[k] == *stimulus) chosen.push_back(k);
+    for (std::size_t k = 0; k < rec.trial_count(); ++k) {
+        if (allowed[k] && (!stimulus || rec.stimulus[k] == *stimulus)) chosen.push_back(k);
     }
-    if (chosen.empty()) {
-        throw usage_error("no trial has stimulus " + quoted(*stimulus) + " in " + rec.source +
-                          "; labels present: " +
+    if (chosen.empty() && stimulus) {
+        throw usage_error("no " + std::string(selection.everything() ? "" : "selected ") + "trial has stimulus " +
+                          quoted(*stimulus) + " in " + rec.source + "; labels present: " +
                           listing(stimulus_labels(rec), [](const std::pair<std::string, std::size_t>& l) {
                               return quoted(l.first) + " (" + std::to_string(l.second) + " trials)";
                           }));
     }
+    if (chosen.empty()) throw usage_error("--trials and --exclude-trials leave no trial of " + rec.source);
     return chosen;
+}
+
+std::vector<std::size_t> parse_trial_list(const std::string& text, const std::string& option) {
+    auto whole = [&](const std::string& part) {
+        if (part.empty() || part.size() > 18 || part.find_first_not_of("0123456789") != std::string::npos) {
+            throw usage_error(option + ": expected trial indices from 0 and ranges like 0-49, comma-separated; got '" +
+                              text + "'");
+        }
+        return static_cast<std::size_t>(std::stoull(part));
+    };
+    std::vector<std::size_t> out;
+    std::size_t start = 0;
+    while (start <= text.size()) {
+        const auto comma = text.find(',', start);
+        const std::string item = text.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+        const auto dash = item.find('-');
+        const std::size_t a = whole(item.substr(0, dash));
+        const std::size_t b = dash == std::string::npos ? a : whole(item.substr(dash + 1));
+        if (b < a) throw usage_error(option + ": the range " + item + " runs backwards");
+        if (b - a > 100000000) throw usage_error(option + ": the range " + item + " is too long");
+        for (std::size_t k = a; k <= b; ++k) out.push_back(k);
+        if (comma == std::string::npos) break;
+        start = comma + 1;
+    }
+    std::sort(out.begin(), out.end());
+    out.erase(std::unique(out.begin(), out.end()), out.end());
+    return out;
 }
 
 std::vector<std::pair<std::string, std::size_t>> stimulus_labels(const recording& rec) {

@@ -129,6 +129,49 @@ double spread_of_corrected(const std::map<info_estimator, double>& info_bits) {
     return high > low ? high - low : 0.0;
 }
 
+/// The q-quantile of `values` by linear interpolation between order statistics (common practice:
+/// Hyndman & Fan 1996, definition 7).
+double quantile(std::vector<double> values, double q) {
+    std::sort(values.begin(), values.end());
+    const double at = q * static_cast<double>(values.size() - 1);
+    const auto below = static_cast<std::size_t>(std::floor(at));
+    const std::size_t above = std::min(below + 1, values.size() - 1);
+    return values[below] + (at - static_cast<double>(below)) * (values[above] - values[below]);
+}
+
+/// Each estimator on growing fractions of the trials, drawn without replacement within each
+/// condition (at least two per condition), averaged over `repeats` draws.
+void trial_fraction_curve(const labelled_responses& t, const stiminfo_request& q, const info_settings& settings,
+                          stiminfo_record& r) {
+    if (q.trial_fraction_repeats == 0) return;
+    r.trial_fractions = {0.25, 0.5, 0.75, 1.0};
+    const auto members = trials_by_condition(t);
+    random_stream rng(derive_seed(settings.seed, {0xf4acULL}));
+    for (double f: r.trial_fractions) {
+        std::map<info_estimator, double> sum;
+        const unsigned repeats = f < 1 ? q.trial_fraction_repeats : 1;
+        for (unsigned k = 0; k < repeats; ++k) {
+            labelled_responses part;
+            part.conditions = t.conditions;
+            part.alphabet = t.alphabet;
+            for (const auto& m: members) {
+                std::vector<std::size_t> order = m;
+                if (f < 1) shuffle(order, rng);
+                const auto keep = std::max<std::size_t>(std::min<std::size_t>(2, m.size()),
+                                                        static_cast<std::size_t>(std::lround(f * static_cast<double>(m.size()))));
+                for (std::size_t i = 0; i < keep; ++i) {
+                    part.condition.push_back(t.condition[order[i]]);
+                    part.response.push_back(t.response[order[i]]);
+                }
+            }
+            for (info_estimator e: q.estimators) {
+                sum[e] += f < 1 ? stimulus_information(part, e, settings) : r.info_bits.at(e);
+            }
+        }
+        for (info_estimator e: q.estimators) r.info_by_fraction[e].push_back(sum[e] / repeats);
+    }
+}
+
 /// "a", "b" and "c" as "'a', 'b', 'c'", sorted, for messages.
 std::string sorted_labels(std::vector<std::string> labels) {
     std::sort(labels.begin(), labels.end());
@@ -177,7 +220,17 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         groups.push_back(g);
     }
     // Conditions: the chosen labels, each keeping at least two trials.
-    std::vector<std::pair<std::string, std::size_t>> labels = stimulus_labels(rec);
+    // Labels and their trial counts among the selected trials, in order of first appearance.
+    const std::vector<std::size_t> selected = select_trials(rec, std::nullopt, q.trials);
+    std::vector<std::pair<std::string, std::size_t>> labels;
+    for (std::size_t k: selected) {
+        auto it = std::find_if(labels.begin(), labels.end(), [&](const auto& l) { return l.first == rec.stimulus[k]; });
+        if (it == labels.end()) {
+            labels.emplace_back(rec.stimulus[k], 1);
+        } else {
+            ++it->second;
+        }
+    }
     if (!q.stimuli.empty()) {
         std::vector<std::pair<std::string, std::size_t>> chosen;
         for (const auto& name: q.stimuli) {
@@ -203,7 +256,7 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
     if (kept.size() < 2) throw insufficient_data(rec.source + ": fewer than two conditions with at least two trials");
     std::vector<std::size_t> trials;
     std::vector<std::uint32_t> condition;
-    for (std::size_t k = 0; k < rec.trial_count(); ++k) {
+    for (std::size_t k: selected) {
         const auto it = std::find(kept.begin(), kept.end(), rec.stimulus[k]);
         if (it == kept.end()) continue;
         trials.push_back(k);
@@ -264,6 +317,7 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         settings.seed = derive_seed(q.settings.seed, {text_hash(r.unit), static_cast<std::uint64_t>(w)});
         if (members.size() > 1) r.population = population_of(members, q, settings);
         for (info_estimator e: q.estimators) r.info_bits[e] = stimulus_information(t, e, settings);
+        trial_fraction_curve(t, q, settings, r);
 
         // Label-shuffle null of the plug-in value: its mean is the plug-in bias under no information.
         const double plugin = stimulus_information(t, info_estimator::plugin, settings);
@@ -271,14 +325,17 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         labelled_responses shuffled = t;
         std::size_t at_least = 0;
         double sum = 0;
+        std::vector<double> null_values;
         for (unsigned i = 0; i < q.null_shuffles; ++i) {
             shuffle(shuffled.condition, rng);
             const double v = stimulus_information(shuffled, info_estimator::plugin, settings);
+            null_values.push_back(v);
             sum += v;
             if (v >= plugin - 1e-12) ++at_least;
         }
         r.null_shuffles = q.null_shuffles;
         if (q.null_shuffles > 0) {
+            r.null_band = {quantile(null_values, 0.025), quantile(null_values, 0.975)};
             r.null_mean_bits = sum / q.null_shuffles;
             r.null_p_value = (1.0 + static_cast<double>(at_least)) / (1.0 + q.null_shuffles);
             r.null_subtracted_bits = plugin - r.null_mean_bits;
@@ -352,7 +409,7 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
                                      : "the interval excludes 0, but the shuffle test does not reject 0: treat as not shown");
         }
         if (spikes == 0) r.warnings.push_back("no spikes in the window: bits per spike undefined");
-    });
+    }, q.progress);
     return records;
 }
 

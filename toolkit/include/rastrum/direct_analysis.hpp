@@ -3,6 +3,7 @@
 /// with the same numbers for any thread count.
 #include <rastrum/direct_method.hpp>
 #include <rastrum/direct_null.hpp>
+#include <rastrum/parallel.hpp>
 #include <rastrum/recording.hpp>
 
 #include <optional>
@@ -14,11 +15,13 @@ namespace rastrum {
 struct direct_request {
     std::vector<std::string> units;         // empty: every unit, in the recording's order
     std::optional<std::string> stimulus;    // only trials with this label; all trials when empty
+    trial_selection trials;                 // only these trials (and of them, those with the label)
     std::vector<double> bin_ms;             // [ms] each > 0
     bool binary = false;                    // clip letters to 0/1
     direct_settings settings;
     unsigned null_rotations = 0;            // rotated-trial null estimates per unit and bin width
     unsigned threads = 1;                   // 0: one per core
+    progress_callback progress;             // told after each unit and bin width
 };
 
 struct direct_record {

@@ -7,6 +7,7 @@
 /// The formulas, the rule that picks the word lengths of the 1/L fit, and the evidence for that
 /// rule are in notes/methods.md.
 #include <rastrum/binning.hpp>
+#include <rastrum/extrapolation.hpp>
 #include <rastrum/types.hpp>
 
 #include <array>
@@ -40,6 +41,18 @@ struct direct_settings {
     std::uint64_t seed = 1;
 };
 
+/// The extrapolation to infinite data at one word length, as a figure shows it: the mean entropy by
+/// the subset estimator at each level of the nested splits (all trials, halves, quarters, eighths)
+/// against the mean inverse trial count, and the quadratics in 1/N fitted to the individual subsets.
+struct data_size_curve {
+    std::vector<double> inverse_trials;   // 1/N per level, N the mean trial count of its subsets
+    std::vector<double> total_bits;       // per word
+    std::vector<double> noise_bits;
+    std::vector<bool> in_fit;             // the eighths are not used by the full-data fit
+    inverse_size_fit total_fit;
+    inverse_size_fit noise_fit;
+};
+
 /// Per-word values (bits per word) at one word length.
 struct letters_estimate {
     int letters = 0;
@@ -57,6 +70,7 @@ struct letters_estimate {
     double info_se_bits = 0;      // standard error of info_bits from its spread over random halves
     double info_half_bits = 0;    // mean over random halves of the trials, each extrapolated alike
     bool well_sampled = false;    // estimator_spread_bits within the sampling rule's tolerance
+    data_size_curve data_size;
 };
 
 /// The three parts of the information rate's standard error (bits/s), combined in quadrature.
@@ -79,6 +93,8 @@ struct direct_estimate {
     double info_rate_se = 0; // [bits/s]
     rate_uncertainty uncertainty;
     std::pair<double, double> info_rate_ci95{0, 0};
+    line_fit total_rate_fit;  // entropy rates [bits/s] against 1/L over fit_letters: intercept + slope / L
+    line_fit noise_rate_fit;
     std::vector<double> half_info_rates;  // the estimate on each random half of the trials [bits/s]
     std::vector<std::string> warnings;
 };

@@ -11,6 +11,14 @@ namespace rastrum {
 /// tasks not yet started are then skipped.
 void parallel_for(std::size_t n, unsigned threads, const std::function<void(std::size_t)>& task);
 
+/// Told after each finished task how many of how many are done; called from the worker threads,
+/// one call at a time. Empty: nobody is told.
+using progress_callback = std::function<void(std::size_t done, std::size_t total)>;
+
+/// The same, telling `progress` after each task.
+void parallel_for(std::size_t n, unsigned threads, const std::function<void(std::size_t)>& task,
+                  const progress_callback& progress);
+
 /// The number of threads `parallel_for` uses for a request of `threads`.
 unsigned effective_threads(unsigned threads);
 

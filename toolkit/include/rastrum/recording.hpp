@@ -45,10 +45,23 @@ std::vector<std::vector<seconds>> align_to_trials(const std::vector<seconds>& sp
 /// Number of spikes that fall inside no trial at all.
 std::size_t spikes_outside_trials(const std::vector<seconds>& spikes, const recording& rec);
 
-/// Trial indices whose label equals `stimulus`, or every trial when `stimulus` is empty.
-/// Throws usage_error when the recording has no labels or no trial carries that label
-/// (listing the labels that exist).
-std::vector<std::size_t> select_trials(const recording& rec, const std::optional<std::string>& stimulus);
+/// Which trials an analysis may use, for scripting repeated-trial subsets (first half against second
+/// half, stable epochs): `only` (when set) minus `excluded`. Indices count from 0, as in /trials.
+struct trial_selection {
+    std::optional<std::vector<std::size_t>> only;
+    std::vector<std::size_t> excluded;
+    bool everything() const { return !only && excluded.empty(); }
+};
+
+/// Trial indices in `selection` whose label equals `stimulus` (any label when empty), ascending.
+/// Throws usage_error for an index past the last trial, when the recording has no labels or no
+/// selected trial carries that label (listing the labels that exist), or when no trial is left.
+std::vector<std::size_t> select_trials(const recording& rec, const std::optional<std::string>& stimulus,
+                                       const trial_selection& selection = {});
+
+/// "0-49,60,70-79" -> {0, ..., 49, 60, 70, ..., 79}: indices and inclusive ranges, comma-separated.
+/// Throws usage_error naming `option` for anything else (negative, reversed or empty parts).
+std::vector<std::size_t> parse_trial_list(const std::string& text, const std::string& option);
 
 /// Distinct labels in order of first appearance, with their trial counts.
 std::vector<std::pair<std::string, std::size_t>> stimulus_labels(const recording& rec);

@@ -2,6 +2,7 @@
 /// Stimulus information over a recording: for each unit and window, how much its response tells
 /// about which of several labelled conditions was shown, by every chosen estimator, with a
 /// label-shuffle null, a bootstrap interval and bits per spike.
+#include <rastrum/parallel.hpp>
 #include <rastrum/population.hpp>
 #include <rastrum/recording.hpp>
 #include <rastrum/responses.hpp>
@@ -21,14 +22,17 @@ struct stiminfo_request {
     info_estimator population_estimator = info_estimator::quadratic_extrapolation;
     unsigned within_condition_shuffles = 5;             // for H_sh(R|S)
     std::vector<std::string> stimuli;    // empty: every label
+    trial_selection trials;              // only these trials
     response_spec response;              // window, code, bin width, binary
     std::optional<std::pair<seconds, seconds>> slide;  // (width, step): windows across response.window
     std::vector<info_estimator> estimators{all_info_estimators.begin(), all_info_estimators.end()};
     unsigned null_shuffles = 200;
     unsigned bootstrap = 200;
     info_estimator interval_estimator = info_estimator::jackknife;
+    unsigned trial_fraction_repeats = 4;  // draws per fraction of the trials; 0: no trial-fraction curve
     info_settings settings;
     unsigned threads = 1;
+    progress_callback progress;  // told after each unit (or population) and window
 };
 
 /// Population values by the population estimator (`independent` is always the extrapolated plug-in
@@ -54,11 +58,16 @@ struct stiminfo_record {
     double null_mean_bits = 0;                               // plug-in under shuffled labels
     double null_p_value = 1;                                 // of the plug-in value
     double null_subtracted_bits = 0;                         // plug-in minus the null mean
+    std::pair<double, double> null_band{0, 0};               // 2.5% and 97.5% quantiles of the null plug-in
     /// 95%: the envelope of the bias-corrected estimates and the null-subtracted plug-in value, widened
     /// on each side by 1.96 bootstrap standard deviations of request.interval_estimator.
     std::pair<double, double> interval{0, 0};
     bool few_trials = false;                                 // fewer trials in some condition than distinct responses
     double mean_spikes = 0;                                  // per trial in the window (all units)
+    /// Each estimator on trial_fractions of the trials (stratified by condition, mean over
+    /// trial_fraction_repeats draws; the last fraction is 1, all trials): how far from converged it is.
+    std::vector<double> trial_fractions;
+    std::map<info_estimator, std::vector<double>> info_by_fraction;
     std::optional<population_record> population;
     std::vector<std::string> warnings;
 };

@@ -1,4 +1,5 @@
 #include <rastrum/csv.hpp>
+#include <rastrum/curves_output.hpp>
 #include <rastrum/direct_results.hpp>
 
 #include <cmath>
@@ -89,8 +90,10 @@ nlohmann::ordered_json direct_json(const std::vector<direct_record>& records, co
                                    const provenance& origin) {
     json j = result_head("direct", origin);
     j["parameters"] = direct_parameters_json(request);
+    add_trial_selection(j["parameters"], request.trials);
     j["records"] = json::array();
     for (const auto& r: records) j["records"].push_back(record_json(r));
+    j["curves"] = curves_json(direct_curves(records));
     return j;
 }
 

@@ -27,4 +27,9 @@ nlohmann::ordered_json result_head(const std::string& analysis, const provenance
     return j;
 }
 
+void add_trial_selection(nlohmann::ordered_json& parameters, const trial_selection& selection) {
+    parameters["trials"] = selection.only ? nlohmann::ordered_json(*selection.only) : nlohmann::ordered_json(nullptr);
+    parameters["excluded_trials"] = selection.excluded;
+}
+
 }  // namespace rastrum

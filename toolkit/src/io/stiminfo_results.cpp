@@ -1,4 +1,5 @@
 #include <rastrum/csv.hpp>
+#include <rastrum/curves_output.hpp>
 #include <rastrum/stiminfo_results.hpp>
 
 #include <algorithm>
@@ -72,6 +73,7 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
                                      const provenance& origin) {
     json j = result_head("stiminfo", origin);
     j["parameters"] = stiminfo_parameters_json(q);
+    add_trial_selection(j["parameters"], q.trials);
     j["records"] = json::array();
     for (const auto& r: records) {
         json per_stimulus = json::object();
@@ -92,7 +94,8 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
              {"null", q.null_shuffles == 0 ? json(nullptr)
                                            : json{{"shuffles", r.null_shuffles},
                                                   {"mean_bits", r.null_mean_bits},
-                                                  {"p_value", r.null_p_value}}},
+                                                  {"p_value", r.null_p_value},
+                                                  {"band95_bits", {r.null_band.first, r.null_band.second}}}},
              {"info_null_subtracted_bits", q.null_shuffles == 0 ? json(nullptr) : json(r.null_subtracted_bits)},
              {"info_ci95_bits", q.bootstrap > 1 ? json{r.interval.first, r.interval.second} : json(nullptr)},
              {"info_ci95_estimator", info_estimator_name(q.interval_estimator)},
@@ -106,6 +109,7 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
              {"population", population_json(r, q)},
              {"warnings", r.warnings}});
     }
+    j["curves"] = curves_json(stiminfo_curves(records, q));
     return j;
 }
 
