@@ -24,6 +24,7 @@ void print_overview() {
                  "           stimulus, extrapolated to infinite data and word length\n"
                  "  stiminfo stimulus information: bits about which of several labelled conditions was shown,\n"
                  "           by six estimators, with a label-shuffle null and a bootstrap interval\n"
+                 "  figures  SVG figures and a report page (index.html) from results of direct and stiminfo\n"
                  "  synth    write a synthetic recording with known answers\n\n"
                  "'rastrum COMMAND --help' describes each command.\n\n"
                  "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
@@ -52,6 +53,7 @@ int main(int argc, char** argv) {
         if (command == "direct") return rastrum::app::run_direct(argc - 1, argv + 1);
         if (command == "synth") return rastrum::app::run_synth(argc - 1, argv + 1);
         if (command == "stiminfo") return rastrum::app::run_stiminfo(argc - 1, argv + 1);
+        if (command == "figures") return rastrum::app::run_figures(argc - 1, argv + 1);
         std::cerr << "rastrum: error: unknown command '" << command << "'\nTry 'rastrum --help'.\n";
         return exit_usage;
     } catch (const rastrum::usage_error& e) {

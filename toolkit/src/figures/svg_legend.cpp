@@ -34,7 +34,8 @@ std::vector<std::string> wrapped(const std::string& text, double width) {
 }
 }  // namespace
 
-std::vector<legend_entry> legend_entries(const panel& p) {
+namespace {
+std::vector<legend_entry> series_entries(const panel& p) {
     std::vector<legend_entry> entries;
     for (const auto& s: p.lines) {
         if (s.label.empty()) continue;
@@ -55,6 +56,11 @@ std::vector<legend_entry> legend_entries(const panel& p) {
         e.raster_tick = true;
         entries.push_back(e);
     }
+    return entries;
+}
+
+std::vector<legend_entry> key_entries(const panel& p) {
+    std::vector<legend_entry> entries;
     for (const auto& k: p.keys) {
         legend_entry e;
         e.lines = {k.label};
@@ -65,6 +71,27 @@ std::vector<legend_entry> legend_entries(const panel& p) {
         e.band = k.band;
         entries.push_back(e);
     }
+    return entries;
+}
+
+void add_new(std::vector<legend_entry>& to, const std::vector<legend_entry>& from) {
+    for (const auto& e: from) {
+        const bool seen = std::any_of(to.begin(), to.end(), [&](const legend_entry& k) { return k.lines == e.lines; });
+        if (!seen) to.push_back(e);
+    }
+}
+}  // namespace
+
+std::vector<legend_entry> legend_entries(const panel& p) {
+    std::vector<legend_entry> entries = series_entries(p);
+    add_new(entries, key_entries(p));
+    return entries;
+}
+
+std::vector<legend_entry> shared_legend_entries(const std::vector<panel>& panels) {
+    std::vector<legend_entry> entries;
+    for (const auto& p: panels) add_new(entries, series_entries(p));
+    for (const auto& p: panels) add_new(entries, key_entries(p));
     return entries;
 }
 

@@ -23,6 +23,8 @@ struct legend_layout {
 
 /// Entries for a panel's labelled series and rasters, then its extra keys.
 std::vector<legend_entry> legend_entries(const panel& p);
+/// One legend for several panels: every series entry first, then every key, each label once.
+std::vector<legend_entry> shared_legend_entries(const std::vector<panel>& panels);
 /// Places the entries in rows within `width` px.
 legend_layout layout_legend(std::vector<legend_entry> entries, double width);
 void draw_legend(std::ostringstream& out, const legend_layout& legend, double x, double y);

@@ -259,13 +259,7 @@ std::string render(const chart& c) {
     }
     legend_layout shared;
     if (c.shared_legend && !geometry.empty()) {
-        std::vector<legend_entry> entries;
-        for (const auto& p: c.panels) {
-            for (auto& e: legend_entries(p)) {
-                const bool seen = std::any_of(entries.begin(), entries.end(), [&](const legend_entry& k) { return k.lines == e.lines; });
-                if (!seen) entries.push_back(e);
-            }
-        }
+        const auto entries = shared_legend_entries(c.panels);
         shared = layout_legend(entries, c.width - 2 * outer_margin - geometry[0].left - right_margin);
     }
     double height = outer_margin + title_h;

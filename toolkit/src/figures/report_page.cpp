@@ -1,0 +1,167 @@
+#include "report_tables.hpp"
+
+#include <rastrum/report_page.hpp>
+#include <rastrum/version.hpp>
+
+#include <sstream>
+
+namespace rastrum {
+
+using namespace report;
+using json = nlohmann::ordered_json;
+
+namespace {
+
+// Inline and system fonts only: the page must open anywhere without a network.
+constexpr const char* style_sheet = R"(
+body { margin: 0; background: #ffffff; color: #1d1d1d;
+       font: 15px/1.45 system-ui, -apple-system, "Segoe UI", "DejaVu Sans", "Liberation Sans", sans-serif; }
+main { max-width: 1100px; margin: 0 auto; padding: 1.25rem 1.5rem 3rem; }
+h1 { font-size: 1.6rem; margin: 0.5rem 0 0.25rem; }
+h2 { font-size: 1.3rem; margin: 2.25rem 0 0.5rem; border-bottom: 2px solid #0072B2; padding-bottom: 0.2rem; }
+h3 { font-size: 1.1rem; margin: 1.75rem 0 0.5rem; }
+h4 { font-size: 1rem; margin: 1.25rem 0 0.25rem; }
+.meta, .note { color: #4a4a4a; font-size: 0.9rem; }
+.meta code { font-size: 0.85rem; word-break: break-all; }
+.table-wrap { overflow-x: auto; margin: 0.5rem 0 1rem; }
+table { border-collapse: collapse; font-size: 0.86rem; font-variant-numeric: tabular-nums; }
+th, td { padding: 0.25rem 0.55rem; border-bottom: 1px solid #dddddd; text-align: right; vertical-align: top; white-space: nowrap; }
+th { background: #f3f3f3; font-weight: 600; }
+td.text { text-align: left; }
+td.main { font-weight: 600; }
+.interval { color: #555555; font-size: 0.8rem; }
+tr.cautioned td { background: #fff8ec; }
+tr.caution td { background: #fff8ec; text-align: left; white-space: normal; color: #4d3300;
+                border-left: 4px solid #D55E00; padding-bottom: 0.45rem; }
+tr.caution ul, .shared-cautions ul, .cautions ul { margin: 0.2rem 0 0; padding-left: 1.3rem; }
+.flag { color: #D55E00; font-weight: 700; }
+.cautions { border: 2px solid #D55E00; background: #fff4ec; border-radius: 6px; padding: 0.6rem 1rem 0.75rem; margin: 1rem 0; }
+.cautions h2 { border: none; margin: 0 0 0.25rem; color: #8a2f00; font-size: 1.15rem; }
+.shared-cautions { border-left: 4px solid #D55E00; background: #fff8ec; padding: 0.4rem 0.75rem; margin: 0.5rem 0; }
+.notices { border: 2px solid #0072B2; background: #eef6fc; border-radius: 6px; padding: 0.5rem 1rem; }
+figure { margin: 1rem 0 1.75rem; }
+figure img { display: block; width: 100%; max-width: 760px; height: auto; border: 1px solid #e6e6e6; }
+figcaption { max-width: 760px; font-size: 0.9rem; color: #333333; margin-top: 0.35rem; }
+figcaption strong { color: #1d1d1d; }
+)";
+
+std::string analysis_title(const std::string& analysis) {
+    return analysis == "direct" ? "Direct method: information about a repeated stimulus"
+                                : "Stimulus information: bits about which condition was shown";
+}
+
+std::string figure_html(const placed_figure& f) {
+    return "<figure><img src=\"" + html(f.file) + "\" alt=\"" + html(f.drawing.title) + "\"><figcaption><strong>" +
+           html(f.drawing.title) + ".</strong> " + html(f.drawing.caption) + "</figcaption></figure>\n";
+}
+
+std::string provenance_html(const result_document& r) {
+    const json& c = r.content;
+    const json& input = c.value("input", json::object());
+    const json& run = c.value("run", json::object());
+    std::ostringstream out;
+    out << "<p class=\"meta\">Result <code>" << html(r.path) << "</code> from recording <code>"
+        << html(input.value("path", std::string("?"))) << "</code> (SHA-256 <code>" << html(input.value("sha256", std::string("?")))
+        << "</code>), rastrum " << html(c.value("version", std::string("?"))) << ", started "
+        << html(run.value("started_utc", std::string("?"))) << ".<br>Command: <code>"
+        << html(run.value("command_line", std::string("?"))) << "</code></p>\n";
+    if (r.curves_from_records) {
+        out << "<p class=\"note\">This result holds no curves (it was written by an older rastrum): the figures show "
+               "what its records hold, without the entropies against 1/N.</p>\n";
+    }
+    return out.str();
+}
+
+/// The figures of one result: its summaries first, then one heading per unit.
+std::string figures_html(const report_result& r) {
+    std::ostringstream out;
+    std::string unit;
+    bool first = true;
+    for (const auto& f: r.figures) {
+        if (f.drawing.unit.empty()) {
+            out << figure_html(f);
+            continue;
+        }
+        if (first || f.drawing.unit != unit) out << "<h3>Unit " << html(f.drawing.unit) << "</h3>\n";
+        first = false;
+        unit = f.drawing.unit;
+        out << figure_html(f);
+    }
+    return out.str();
+}
+
+std::string caution_box(const std::vector<std::pair<const report_result*, grouped_cautions>>& all) {
+    std::size_t records = 0, cautioned = 0, count = 0;
+    std::ostringstream list;
+    for (const auto& [r, g]: all) {
+        const json& rs = r->result->content["records"];
+        records += rs.size();
+        for (std::size_t i = 0; i < rs.size(); ++i) {
+            const json& w = rs[i].value("warnings", json::array());
+            cautioned += w.is_array() && !w.empty();
+        }
+        if (g.shared.empty() && g.own.empty()) continue;
+        list << "<li><strong>" << html(r->result->path) << "</strong><ul>\n";
+        for (const auto& s: g.shared) {
+            list << "<li><strong>every record:</strong> " << html(s) << "</li>\n";
+            ++count;
+        }
+        for (const auto& c: g.own) {
+            list << "<li><strong>" << html(c.where) << ":</strong> " << html(c.text) << "</li>\n";
+            ++count;
+        }
+        list << "</ul></li>\n";
+    }
+    std::ostringstream out;
+    out << "<section class=\"cautions\" id=\"cautions\"><h2><span class=\"flag\" aria-hidden=\"true\">&#9888;</span> "
+           "Statistical cautions</h2>\n";
+    if (count == 0) {
+        out << "<p>No record carries a caution.</p>";
+    } else {
+        out << "<p>" << cautioned << " of " << records
+            << " records carry cautions: the data may not support the number as it stands. Each caution is repeated under "
+               "the row it concerns.</p>\n<ul>\n"
+            << list.str() << "</ul>";
+    }
+    out << "</section>\n";
+    return out.str();
+}
+
+}  // namespace
+
+std::string report_html(const report_contents& contents) {
+    std::vector<std::pair<const report_result*, grouped_cautions>> cautions;
+    for (const auto& r: contents.results) {
+        cautions.emplace_back(&r, group_cautions(cautions_of(r.result->content), r.result->content["records"].size()));
+    }
+    std::ostringstream out;
+    out << "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
+           "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
+           "<title>rastrum report</title>\n<style>"
+        << style_sheet << "</style>\n</head>\n<body>\n<main>\n<h1>Information in spike trains</h1>\n"
+        << "<p class=\"meta\">Report made by rastrum " << html(version()) << " from " << contents.results.size()
+        << (contents.results.size() == 1 ? " result" : " results") << ". Figures are SVG files beside this page.</p>\n";
+    if (!contents.notices.empty()) {
+        out << "<div class=\"notices\"><strong>About the inputs</strong><ul>\n";
+        for (const auto& n: contents.notices) out << "<li>" << html(n) << "</li>\n";
+        out << "</ul></div>\n";
+    }
+    out << caution_box(cautions);
+    for (std::size_t i = 0; i < contents.results.size(); ++i) {
+        const report_result& r = contents.results[i];
+        out << "<section>\n<h2>" << html(analysis_title(r.result->analysis)) << "</h2>\n" << provenance_html(*r.result);
+        out << (r.result->analysis == "direct" ? direct_table(r.result->content, cautions[i].second)
+                                               : stiminfo_table(r.result->content, cautions[i].second));
+        out << figures_html(r) << "</section>\n";
+    }
+    if (!contents.recording_figures.empty()) {
+        out << "<section>\n<h2>Spikes in the recording</h2>\n<p class=\"meta\">Recording <code>" << html(contents.recording_path)
+            << "</code>.</p>\n";
+        for (const auto& f: contents.recording_figures) out << figure_html(f);
+        out << "</section>\n";
+    }
+    out << "</main>\n</body>\n</html>\n";
+    return out.str();
+}
+
+}  // namespace rastrum
