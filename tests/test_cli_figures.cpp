@@ -50,10 +50,10 @@ std::set<std::string> files_in(const std::string& folder) {
     return names;
 }
 
-/// Every file a page refers to (src= and href=), relative to the page.
+/// Every file a page refers to (src= and href=, not its own #anchors), relative to the page.
 std::set<std::string> references_of(const std::string& page) {
     std::set<std::string> refs;
-    const std::regex reference("(?:src|href)=\"([^\"]*)\"");
+    const std::regex reference("(?:src|href)=\"([^\"#][^\"]*)\"");
     for (auto it = std::sregex_iterator(page.begin(), page.end(), reference); it != std::sregex_iterator(); ++it) refs.insert((*it)[1]);
     return refs;
 }
@@ -100,6 +100,11 @@ TEST(cli_figures, writes_the_page_and_well_formed_figures_of_both_analyses) {
         if (n.size() > 4 && n.substr(n.size() - 4) == ".svg") svgs.insert(n);
     }
     EXPECT_EQ(references_of(page), svgs) << "the page refers to exactly the figures beside it";
+    // Every #anchor it links to exists.
+    const std::regex anchor("href=\"#([^\"]+)\"");
+    for (auto it = std::sregex_iterator(page.begin(), page.end(), anchor); it != std::sregex_iterator(); ++it) {
+        EXPECT_NE(page.find("id=\"" + (*it)[1].str() + "\""), std::string::npos) << (*it)[1];
+    }
     for (const char* part: {"<style>", "Statistical cautions", "info b/s", "null-subtracted", "Populations", "synergy"}) {
         EXPECT_NE(page.find(part), std::string::npos) << part;
     }
@@ -202,6 +207,7 @@ TEST(cli_figures, curves_rebuilt_from_records_match_the_written_curves) {
     EXPECT_EQ(compared, rebuilt.size()) << "every rebuilt curve has a written twin";
 }
 
+// Exit codes as README and `rastrum --help` document them: 3 for unreadable or invalid input.
 TEST(cli_figures, unreadable_results_exit_3_and_write_nothing) {
     const auto& in = shared_inputs();
     const std::string folder = fresh_folder("figures-bad-input");
@@ -234,6 +240,7 @@ TEST(cli_figures, unreadable_results_exit_3_and_write_nothing) {
     EXPECT_FALSE(file_exists(folder + "/out"));
 }
 
+// Exit code 2 (usage) for outputs that cannot be written, as for the other commands' --json.
 TEST(cli_figures, output_folders_that_cannot_be_made_are_usage_errors) {
     const auto& in = shared_inputs();
     const std::string folder = fresh_folder("figures-bad-output");
@@ -284,4 +291,15 @@ TEST(cli_figures, help_lists_the_options_and_the_command_is_in_the_overview) {
         EXPECT_NE(help.out.find(option), std::string::npos) << option;
     }
     EXPECT_NE(run_rastrum("--help").out.find("figures"), std::string::npos);
+}
+
+// The figure the README shows is what the commands in notes/figures.md make from the demo.
+TEST(cli_figures, the_readme_figure_is_what_the_documented_commands_make) {
+    const std::string folder = fresh_folder("figures-readme");
+    const std::string demo = std::string(RASTRUM_SOURCE_DIR) + "/demo-recordings/flicker-tectum.h5";
+    ASSERT_EQ(run_rastrum("direct " + demo + " --bin-ms 2,4 --letters 1-8 --quiet --json " + folder + "/demo.json").exit_code, 0);
+    ASSERT_EQ(run_rastrum(figures(folder + "/demo.json --quiet --out " + folder + "/report")).exit_code, 0);
+    EXPECT_EQ(read_file(folder + "/report/demo-summary.svg"),
+              read_file(std::string(RASTRUM_SOURCE_DIR) + "/notes/figures/demo-summary.svg"))
+        << "remake notes/figures/demo-summary.svg with the commands in notes/figures.md";
 }

@@ -3,6 +3,7 @@
 #include <rastrum/report_page.hpp>
 #include <rastrum/version.hpp>
 
+#include <algorithm>
 #include <sstream>
 
 namespace rastrum {
@@ -39,6 +40,10 @@ tr.caution ul, .shared-cautions ul, .cautions ul { margin: 0.2rem 0 0; padding-l
 .cautions h2 { border: none; margin: 0 0 0.25rem; color: #8a2f00; font-size: 1.15rem; }
 .shared-cautions { border-left: 4px solid #D55E00; background: #fff8ec; padding: 0.4rem 0.75rem; margin: 0.5rem 0; }
 .notices { border: 2px solid #0072B2; background: #eef6fc; border-radius: 6px; padding: 0.5rem 1rem; }
+.unit-cautions { color: #8a2f00; margin: 0.25rem 0 0.5rem; }
+nav.contents { font-size: 0.9rem; margin: 0.75rem 0; }
+nav.contents ul { margin: 0.2rem 0 0; padding-left: 1.3rem; }
+a { color: #0060a0; }
 figure { margin: 1rem 0 1.75rem; }
 figure img { display: block; width: 100%; max-width: 760px; height: auto; border: 1px solid #e6e6e6; }
 figcaption { max-width: 760px; font-size: 0.9rem; color: #333333; margin-top: 0.35rem; }
@@ -72,21 +77,69 @@ std::string provenance_html(const result_document& r) {
     return out.str();
 }
 
-/// The figures of one result: its summaries first, then one heading per unit.
-std::string figures_html(const report_result& r) {
-    std::ostringstream out;
-    std::string unit;
-    bool first = true;
+/// Units in the order their figures come.
+std::vector<std::string> figure_units(const report_result& r) {
+    std::vector<std::string> units;
     for (const auto& f: r.figures) {
-        if (f.drawing.unit.empty()) {
-            out << figure_html(f);
-            continue;
+        if (!f.drawing.unit.empty() && std::find(units.begin(), units.end(), f.drawing.unit) == units.end()) {
+            units.push_back(f.drawing.unit);
         }
-        if (first || f.drawing.unit != unit) out << "<h3>Unit " << html(f.drawing.unit) << "</h3>\n";
-        first = false;
-        unit = f.drawing.unit;
-        out << figure_html(f);
     }
+    return units;
+}
+
+/// Anchors by position, so that no id ever depends on what a unit id contains.
+std::string result_anchor(std::size_t result) { return "result-" + std::to_string(result + 1); }
+std::string unit_anchor(std::size_t result, std::size_t unit) {
+    return result_anchor(result) + "-unit-" + std::to_string(unit + 1);
+}
+
+/// Under a unit's heading: how many of its records carry cautions, so the figures are read with them.
+std::string unit_caution_note(const report_result& r, const std::string& unit) {
+    std::size_t records = 0, cautioned = 0;
+    for (const auto& rec: r.result->content["records"]) {
+        if (rec["unit"] != unit) continue;
+        ++records;
+        const json& w = rec.value("warnings", json::array());
+        cautioned += w.is_array() && !w.empty();
+    }
+    if (cautioned == 0) return "";
+    return "<p class=\"unit-cautions\"><span class=\"flag\" aria-hidden=\"true\">&#9888;</span> " + std::to_string(cautioned) +
+           " of " + std::to_string(records) + " records of " + html(unit) +
+           " carry cautions; they are listed under their rows in the table above.</p>\n";
+}
+
+/// The figures of one result: its summaries first, then one heading per unit.
+std::string figures_html(const report_result& r, std::size_t index) {
+    std::ostringstream out;
+    for (const auto& f: r.figures) {
+        if (f.drawing.unit.empty()) out << figure_html(f);
+    }
+    const auto units = figure_units(r);
+    for (std::size_t u = 0; u < units.size(); ++u) {
+        out << "<h3 id=\"" << unit_anchor(index, u) << "\">Unit " << html(units[u]) << "</h3>\n" << unit_caution_note(r, units[u]);
+        for (const auto& f: r.figures) {
+            if (f.drawing.unit == units[u]) out << figure_html(f);
+        }
+    }
+    return out.str();
+}
+
+/// Links to every result and unit: the page is long when there are many units.
+std::string contents_html(const report_contents& contents) {
+    std::ostringstream out;
+    out << "<nav class=\"contents\"><strong>Contents</strong><ul>\n<li><a href=\"#cautions\">Statistical cautions</a></li>\n";
+    for (std::size_t i = 0; i < contents.results.size(); ++i) {
+        const report_result& r = contents.results[i];
+        out << "<li><a href=\"#" << result_anchor(i) << "\">" << html(r.result->path) << "</a>";
+        const auto units = figure_units(r);
+        for (std::size_t u = 0; u < units.size(); ++u) {
+            out << (u == 0 ? ": " : ", ") << "<a href=\"#" << unit_anchor(i, u) << "\">" << html(units[u]) << "</a>";
+        }
+        out << "</li>\n";
+    }
+    if (!contents.recording_figures.empty()) out << "<li><a href=\"#recording\">Spikes in the recording</a></li>\n";
+    out << "</ul></nav>\n";
     return out.str();
 }
 
@@ -146,16 +199,17 @@ std::string report_html(const report_contents& contents) {
         for (const auto& n: contents.notices) out << "<li>" << html(n) << "</li>\n";
         out << "</ul></div>\n";
     }
-    out << caution_box(cautions);
+    out << contents_html(contents) << caution_box(cautions);
     for (std::size_t i = 0; i < contents.results.size(); ++i) {
         const report_result& r = contents.results[i];
-        out << "<section>\n<h2>" << html(analysis_title(r.result->analysis)) << "</h2>\n" << provenance_html(*r.result);
+        out << "<section id=\"" << result_anchor(i) << "\">\n<h2>" << html(analysis_title(r.result->analysis)) << "</h2>\n"
+            << provenance_html(*r.result);
         out << (r.result->analysis == "direct" ? direct_table(r.result->content, cautions[i].second)
                                                : stiminfo_table(r.result->content, cautions[i].second));
-        out << figures_html(r) << "</section>\n";
+        out << figures_html(r, i) << "</section>\n";
     }
     if (!contents.recording_figures.empty()) {
-        out << "<section>\n<h2>Spikes in the recording</h2>\n<p class=\"meta\">Recording <code>" << html(contents.recording_path)
+        out << "<section id=\"recording\">\n<h2>Spikes in the recording</h2>\n<p class=\"meta\">Recording <code>" << html(contents.recording_path)
             << "</code>.</p>\n";
         for (const auto& f: contents.recording_figures) out << figure_html(f);
         out << "</section>\n";
