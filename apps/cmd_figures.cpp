@@ -5,6 +5,7 @@
 #include <rastrum/figure_report.hpp>
 #include <rastrum/output_folder.hpp>
 
+#include <filesystem>
 #include <iostream>
 
 namespace rastrum::app {
@@ -41,7 +42,8 @@ int run_figures(int argc, char** argv) {
     const figure_report report = make_figure_report(request);
     write_output_folder(out, report.files);
     for (const auto& n: report.notices) note(quiet, "note: " + n);
-    note(quiet, "wrote " + out + "/index.html and " + std::to_string(report.figures) + " figures");
+    note(quiet, "wrote " + (std::filesystem::path(out) / "index.html").string() + " and " + std::to_string(report.figures) +
+                    " figures");
     return 0;
 }
 

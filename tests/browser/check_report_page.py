@@ -1,8 +1,8 @@
 #!/usr/bin/env python3
 """Opens the report page of `rastrum figures` in Debian's headless Chromium, from disk, and checks
 that it shows: no script errors, no console errors, no failed or network requests, every image
-decoded, no horizontal scrolling on a laptop-sized window, and a screenshot that is not blank and
-holds the figures' colours.
+decoded, no horizontal scrolling of the page or of a table on a laptop-sized window, and a screenshot
+that is not blank and holds the figures' colours.
 
   check_report_page.py RASTRUM WORK_FOLDER
 
@@ -300,6 +300,7 @@ def main():
             images: document.images.length,
             overflow: document.documentElement.scrollWidth - window.innerWidth,
             wideImages: [...document.images].filter(i => i.getBoundingClientRect().width > window.innerWidth).length,
+            scrollingTables: [...document.querySelectorAll('.table-wrap')].filter(e => e.scrollWidth > e.clientWidth).length,
             cautions: document.querySelectorAll('#cautions li').length,
             firstFigure: (() => { const r = document.querySelector('figure img').getBoundingClientRect();
                                   return {x: r.x + scrollX, y: r.y + scrollY, width: r.width, height: r.height}; })()
@@ -312,6 +313,9 @@ def main():
         if layout["overflow"] > 0 or layout["wideImages"]:
             print("FAIL: at %dx%d the page scrolls sideways by %d px (%d images wider than the window)"
                   % (LAPTOP[0], LAPTOP[1], layout["overflow"], layout["wideImages"]))
+            ok = False
+        if layout["scrollingTables"]:
+            print("FAIL: at %dx%d %d tables need sideways scrolling" % (LAPTOP[0], LAPTOP[1], layout["scrollingTables"]))
             ok = False
         if layout["cautions"] == 0:
             print("FAIL: 40 trials must draw cautions, and the page lists none at the top")

@@ -17,7 +17,7 @@ namespace {
 constexpr const char* style_sheet = R"(
 body { margin: 0; background: #ffffff; color: #1d1d1d;
        font: 15px/1.45 system-ui, -apple-system, "Segoe UI", "DejaVu Sans", "Liberation Sans", sans-serif; }
-main { max-width: 1100px; margin: 0 auto; padding: 1.25rem 1.5rem 3rem; }
+main { max-width: 1240px; margin: 0 auto; padding: 1.25rem 1.5rem 3rem; }
 h1 { font-size: 1.6rem; margin: 0.5rem 0 0.25rem; }
 h2 { font-size: 1.3rem; margin: 2.25rem 0 0.5rem; border-bottom: 2px solid #0072B2; padding-bottom: 0.2rem; }
 h3 { font-size: 1.1rem; margin: 1.75rem 0 0.5rem; }
@@ -26,8 +26,8 @@ h4 { font-size: 1rem; margin: 1.25rem 0 0.25rem; }
 .meta code { font-size: 0.85rem; word-break: break-all; }
 .table-wrap { overflow-x: auto; margin: 0.5rem 0 1rem; }
 table { border-collapse: collapse; font-size: 0.86rem; font-variant-numeric: tabular-nums; }
-th, td { padding: 0.25rem 0.55rem; border-bottom: 1px solid #dddddd; text-align: right; vertical-align: top; white-space: nowrap; }
-th { background: #f3f3f3; font-weight: 600; }
+th, td { padding: 0.25rem 0.45rem; border-bottom: 1px solid #dddddd; text-align: right; vertical-align: top; white-space: nowrap; }
+th { background: #f3f3f3; font-weight: 600; white-space: normal; vertical-align: bottom; }
 td.text { text-align: left; }
 td.main { font-weight: 600; }
 .interval { color: #555555; font-size: 0.8rem; }
@@ -60,6 +60,17 @@ std::string figure_html(const placed_figure& f) {
            html(f.drawing.title) + ".</strong> " + html(f.drawing.caption) + "</figcaption></figure>\n";
 }
 
+/// Every parameter as key = value, compactly: what a methods section needs to restate the run.
+std::string parameters_text(const json& result) {
+    const json& parameters = result.value("parameters", json::object());
+    if (!parameters.is_object() || parameters.empty()) return "not recorded";
+    std::string text;
+    for (const auto& [key, value]: parameters.items()) {
+        text += (text.empty() ? "" : "; ") + html(key) + " = " + html(value.is_string() ? value.get<std::string>() : value.dump());
+    }
+    return text;
+}
+
 std::string provenance_html(const result_document& r) {
     const json& c = r.content;
     const json& input = c.value("input", json::object());
@@ -69,7 +80,8 @@ std::string provenance_html(const result_document& r) {
         << html(input.value("path", std::string("?"))) << "</code> (SHA-256 <code>" << html(input.value("sha256", std::string("?")))
         << "</code>), rastrum " << html(c.value("version", std::string("?"))) << ", started "
         << html(run.value("started_utc", std::string("?"))) << ".<br>Command: <code>"
-        << html(run.value("command_line", std::string("?"))) << "</code></p>\n";
+        << html(run.value("command_line", std::string("?"))) << "</code><br>Parameters: " << parameters_text(c)
+        << "</p>\n";
     if (r.curves_from_records) {
         out << "<p class=\"note\">This result holds no curves (it was written by an older rastrum): the figures show "
                "what its records hold, without the entropies against 1/N.</p>\n";

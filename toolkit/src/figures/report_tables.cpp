@@ -68,6 +68,16 @@ std::string flag(bool cautioned) {
     return cautioned ? " <span class=\"flag\" title=\"see the caution below\">&#9888;</span>" : "";
 }
 
+/// Header text that may wrap after its hyphens ("quadratic-extrapolation" is wider than its numbers).
+std::string breakable(const std::string& text) {
+    std::string out;
+    for (char c: html(text)) {
+        out += c;
+        if (c == '-') out += "<wbr>";
+    }
+    return out;
+}
+
 std::string header_row(const std::vector<std::string>& names) {
     std::string out = "<thead><tr>";
     for (const auto& n: names) out += "<th scope=\"col\">" + n + "</th>";
@@ -173,11 +183,15 @@ std::string stiminfo_table(const json& result, const grouped_cautions& cautions)
                                     ? interval_estimator
                                     : (estimators.empty() ? "" : estimators.front());
     std::vector<std::string> names = {"unit", "window", "trials", "conditions"};
-    for (const auto& e: estimators) names.push_back(html(e) + " bits");
-    for (const char* n: {"null-subtracted", "95% interval", "p(shuffle)"}) names.push_back(n);
-    names.push_back("bits/spike" + (interval_estimator.empty() ? std::string() : " (" + html(interval_estimator) + ")"));
+    for (const auto& e: estimators) names.push_back(breakable(e));
+    for (const char* n: {"null-subtracted", "95% interval", "p(shuffle)"}) names.push_back(breakable(n));
+    names.push_back("bits/spike" + (interval_estimator.empty() ? std::string() : " (" + breakable(interval_estimator) + ")"));
     std::ostringstream out;
-    out << shared_cautions(cautions) << "<div class=\"table-wrap\"><table>\n" << header_row(names) << "<tbody>\n";
+    out << shared_cautions(cautions)
+        << "<p class=\"note\">Information in bits about which condition was shown, by each estimator (plug-in is biased "
+           "upward); null-subtracted is plug-in minus its mean under shuffled labels"
+        << (interval_estimator.empty() ? "" : "; the 95% interval and bits per spike are reported with " + html(interval_estimator))
+        << ".</p>\n<div class=\"table-wrap\"><table>\n" << header_row(names) << "<tbody>\n";
     for (std::size_t i = 0; i < records.size(); ++i) {
         const json& r = records[i];
         const bool cautioned = own_caution(i, cautions);

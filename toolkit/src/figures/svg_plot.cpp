@@ -16,7 +16,7 @@ namespace rastrum::svg {
 namespace {
 
 constexpr double outer_margin = 12, chart_title_px = 15, panel_title_px = 13, axis_label_px = 13, tick_px = 12;
-constexpr double tick_length = 4, right_margin = 12, panel_gap = 14, min_font_px = 9;
+constexpr double tick_length = 4, right_margin = 16, panel_gap = 14, min_font_px = 9;
 
 /// The font size (at most `preferred`, at least min_font_px) at which `text` fits in `available` px.
 double fitted_font(const std::string& text, double preferred, double available) {
