@@ -62,7 +62,7 @@ std::optional<figure> rates_vs_bin_width(const result_document& doc, const std::
         if (!c) continue;
         bottom.lines.push_back(points_of(*c, look, c->series == "total" ? "total entropy" : "noise entropy"));
         bottom.x_label = axis_title(c->x);
-        bottom.y_label = axis_title(c->y);
+        bottom.y_label = axis_title("entropy rate", c->y.unit);  // total and noise share the axis
     }
     bottom.x_from_zero = bottom.y_from_zero = true;
     if (!top.lines.empty()) chart.panels.push_back(top);
@@ -100,7 +100,7 @@ std::optional<figure> rates_vs_inverse_letters(const result_document& doc, const
             entropies.lines.push_back(value_at_zero(c->fit->coefficients[0], look));
         }
         entropies.x_label = axis_title(c->x);
-        entropies.y_label = axis_title(c->y);
+        entropies.y_label = axis_title("entropy rate", c->y.unit);  // total and noise share the axis
     }
     entropies.keys = fit_keys("word length used by the fit", "word length not used by the fit");
     svg::panel information;
