@@ -12,7 +12,7 @@ namespace rastrum::app {
 
 int run_figures(int argc, char** argv) {
     figure_report_request request;
-    std::string out, recording_path, psth_text, unused;
+    std::string out, recording_path, psth_text;
     bool quiet = false;
     po::options_description options("Options");
     options.add_options()
@@ -26,7 +26,7 @@ int run_figures(int argc, char** argv) {
     po::variables_map vm;
     if (!parse_command(argc, argv, "figures", "RESULT.json [RESULT.json ...] --out DIR [--recording FILE] [--unit ID]... [--psth-ms W]",
                        options,
-                       {{"results", "RESULT.json", "results of rastrum direct or stiminfo (--json); one or more", &unused,
+                       {{"results", "RESULT.json", "results of rastrum direct or stiminfo (--json); one or more", nullptr,
                          &request.results}},
                        vm)) {
         return 0;

@@ -279,10 +279,6 @@ std::vector<double> bins_of(const result_document& doc, const std::string& unit,
 
 }  // namespace
 
-bool unit_choice::wants(const std::string& unit) const {
-    return ids.empty() || std::find(ids.begin(), ids.end(), unit) != ids.end();
-}
-
 std::vector<figure> direct_figures(const result_document& doc, const unit_choice& units) {
     std::vector<figure> out;
     const json& records = doc.content["records"];

@@ -5,6 +5,14 @@
 #include <algorithm>
 #include <cmath>
 
+namespace rastrum {
+
+bool unit_choice::wants(const std::string& unit) const {
+    return ids.empty() || std::find(ids.begin(), ids.end(), unit) != ids.end();
+}
+
+}  // namespace rastrum
+
 namespace rastrum::figure_parts {
 
 figure drawn_figure(svg::chart chart, const std::string& kind, const std::string& unit, const std::string& qualifier,
