@@ -96,8 +96,13 @@ bool parse_command(int argc, char** argv, const std::string& command, const std:
     if (find_analysis_kind(command)) hidden.add_options()("check-options", "");
     po::positional_options_description order;
     for (const auto& p: positional) {
-        hidden.add_options()(p.name.c_str(), po::value(p.value));
-        order.add(p.name.c_str(), 1);
+        if (p.values) {
+            hidden.add_options()(p.name.c_str(), po::value(p.values)->multitoken());
+            order.add(p.name.c_str(), -1);
+        } else {
+            hidden.add_options()(p.name.c_str(), po::value(p.value));
+            order.add(p.name.c_str(), 1);
+        }
     }
     po::options_description all;
     all.add(options).add(help_option).add(hidden);

@@ -26,11 +26,14 @@ std::vector<double> parse_number_list(const std::string& text, const std::string
 std::vector<std::string> parse_text_list(const std::string& text, const std::string& option);
 
 /// A positional argument: its option name inside Boost, what help calls it, and what it is.
+/// With `values` instead of `value` it takes every remaining positional argument (one or more), so
+/// it must come last.
 struct positional_argument {
     std::string name;       // e.g. "file"
     std::string shown_as;   // e.g. "FILE"
     std::string meaning;    // e.g. "the recording (HDF5, native layout)"
     std::string* value;
+    std::vector<std::string>* values = nullptr;
 };
 
 /// Parses argv for one subcommand: named options, required positional arguments, --help. Returns

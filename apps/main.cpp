@@ -26,6 +26,7 @@ void print_overview() {
                  "           by six estimators, with a label-shuffle null and a bootstrap interval\n"
                  "  batch    run the analyses of a plan file over many recordings, each task in its own process,\n"
                  "           with a manifest; re-runs skip tasks whose inputs and options are unchanged\n"
+                 "  figures  SVG figures and a report page (index.html) from results of direct and stiminfo\n"
                  "  synth    write a synthetic recording with known answers\n\n"
                  "'rastrum COMMAND --help' describes each command.\n\n"
                  "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
@@ -55,6 +56,7 @@ int main(int argc, char** argv) {
         if (command == "synth") return rastrum::app::run_synth(argc - 1, argv + 1);
         if (command == "stiminfo") return rastrum::app::run_stiminfo(argc - 1, argv + 1);
         if (command == "batch") return rastrum::app::run_batch(argc - 1, argv + 1);
+        if (command == "figures") return rastrum::app::run_figures(argc - 1, argv + 1);
         std::cerr << "rastrum: error: unknown command '" << command << "'\nTry 'rastrum --help'.\n";
         return exit_usage;
     } catch (const rastrum::usage_error& e) {
