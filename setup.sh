@@ -16,7 +16,8 @@ esac
 build_packages=(cmake make g++ pkg-config libhdf5-dev libeigen3-dev libboost-program-options-dev
                 nlohmann-json3-dev libssl-dev libgtest-dev libbenchmark-dev)
 # The reference checks run general-purpose libraries (scipy, scikit-learn, h5py) on Debian's python3.
-test_packages=(python3 python3-numpy python3-scipy python3-sklearn python3-h5py)
+# The report page is opened in a headless browser (tests/browser/check_report_page.py).
+test_packages=(python3 python3-numpy python3-scipy python3-sklearn python3-h5py chromium)
 
 wanted=("${build_packages[@]}")
 [ "$mode" = test ] && wanted+=("${test_packages[@]}")

@@ -65,7 +65,7 @@ int run_direct(int argc, char** argv) {
     request.trials = trials_of(shared);
     check_direct_request(request);
     const recording_source source = source_of(file, input);
-    const output_choice out = choose_outputs(shared, source_files(source));
+    const output_choice out = choose_outputs(shared, vm, source_files(source));
     return analyse_and_write(argc, argv, source, request.threads, out, [&](const recording& rec, provenance& origin) {
         std::vector<direct_record> records;
         {

@@ -99,7 +99,7 @@ int run_stiminfo(int argc, char** argv) {
     request.threads = static_cast<unsigned>(parse_whole_number(threads_text, "--threads", 0, 1024));
     check_stiminfo_request(request);
     const recording_source source = source_of(file, input);
-    const output_choice out = choose_outputs(shared, source_files(source));
+    const output_choice out = choose_outputs(shared, vm, source_files(source));
     return analyse_and_write(argc, argv, source, request.threads, out, [&](const recording& rec, provenance& origin) {
         std::vector<stiminfo_record> records;
         {

@@ -2,6 +2,7 @@
 #include "progress_display.hpp"
 
 #include <rastrum/atomic_file.hpp>
+#include <rastrum/batch_plan.hpp>
 #include <rastrum/curves_output.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/parallel.hpp>
@@ -73,16 +74,36 @@ std::vector<double> parse_number_list(const std::string& text, const std::string
     return values;
 }
 
+namespace {
+// What `rastrum batch` needs to know of a command's options to turn plan keys into them.
+void describe_options(const std::string& command, const po::options_description& options) {
+    nlohmann::ordered_json list = nlohmann::ordered_json::array();
+    for (const auto& o: options.options()) {
+        list.push_back({{"name", o->long_name()},
+                        {"takes_value", o->semantic()->max_tokens() > 0},
+                        {"repeatable", o->semantic()->is_composing()}});
+    }
+    std::cout << nlohmann::ordered_json{{"command", command}, {"options", list}}.dump(2) << "\n";
+}
+}  // namespace
+
 bool parse_command(int argc, char** argv, const std::string& command, const std::string& synopsis,
                    const po::options_description& options, const std::vector<positional_argument>& positional,
-                   po::variables_map& vm) {
+                   po::variables_map& vm, const std::string& epilogue) {
     po::options_description help_option;
     help_option.add_options()("help,h", "show this help and exit");
     po::options_description hidden;
+    hidden.add_options()("describe-options", "");
+    if (find_analysis_kind(command)) hidden.add_options()("check-options", "");
     po::positional_options_description order;
     for (const auto& p: positional) {
-        hidden.add_options()(p.name.c_str(), po::value(p.value));
-        order.add(p.name.c_str(), 1);
+        if (p.values) {
+            hidden.add_options()(p.name.c_str(), po::value(p.values)->multitoken());
+            order.add(p.name.c_str(), -1);
+        } else {
+            hidden.add_options()(p.name.c_str(), po::value(p.value));
+            order.add(p.name.c_str(), 1);
+        }
     }
     po::options_description all;
     all.add(options).add(help_option).add(hidden);
@@ -93,6 +114,10 @@ bool parse_command(int argc, char** argv, const std::string& command, const std:
     } catch (const po::error& e) {
         throw usage_error(e.what());
     }
+    if (vm.count("describe-options")) {
+        describe_options(command, options);
+        return false;
+    }
     if (vm.count("help")) {
         po::options_description shown;
         shown.add(options).add(help_option);
@@ -100,7 +125,8 @@ bool parse_command(int argc, char** argv, const std::string& command, const std:
         for (const auto& p: positional) std::cout << "  " << p.shown_as << "  " << p.meaning << "\n";
         std::cout << "\n" << shown << "\n"
                   << "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
-                     "4 the data cannot support the analysis. Outputs are written whole or not at all.\n";
+                     "4 the data cannot support the analysis. Outputs are written whole or not at all.\n"
+                  << epilogue;
         return false;
     }
     for (const auto& p: positional) {
@@ -137,13 +163,14 @@ std::uint64_t parse_whole_number(const std::string& text, const std::string& opt
     return value;
 }
 
-std::string joined_command_line(int argc, char** argv) {
+std::string joined_command_line(int argc, char** argv) { return joined_command_line(std::vector<std::string>(argv, argv + argc)); }
+
+std::string joined_command_line(const std::vector<std::string>& arguments) {
     std::string line;
-    for (int i = 0; i < argc; ++i) {
+    for (std::size_t i = 0; i < arguments.size(); ++i) {
         if (i) line += ' ';
-        std::string a = argv[i];
-        if (a.find_first_of(" \t'\"") != std::string::npos) a = "'" + a + "'";
-        line += a;
+        const std::string& a = arguments[i];
+        line += a.find_first_of(" \t'\"") != std::string::npos ? "'" + a + "'" : a;
     }
     return line;
 }
@@ -234,9 +261,11 @@ trial_selection trials_of(const shared_options& shared) {
     return s;
 }
 
-output_choice choose_outputs(const shared_options& shared, const std::vector<std::string>& inputs) {
+output_choice choose_outputs(const shared_options& shared, const po::variables_map& vm,
+                             const std::vector<std::string>& inputs) {
     output_choice out;
     out.quiet = shared.quiet;
+    out.check_only = vm.count("check-options") > 0;
     auto asked = [](const std::string& path) { return path.empty() ? std::nullopt : std::optional<std::string>(path); };
     out.json = asked(shared.json);
     out.csv = asked(shared.csv);
@@ -280,6 +309,7 @@ recording read_input(const recording_source& source, bool quiet, provenance& ori
 
 int analyse_and_write(int argc, char** argv, const recording_source& source, unsigned threads, const output_choice& out,
                       const std::function<rendered_results(const recording&, provenance&)>& analyse) {
+    if (out.check_only) return 0;
     provenance origin;
     // argv[0] is the subcommand's name; the program's own name sits just before it.
     origin.command_line = joined_command_line(argc + 1, argv - 1);

@@ -27,19 +27,26 @@ std::vector<double> parse_number_list(const std::string& text, const std::string
 std::vector<std::string> parse_text_list(const std::string& text, const std::string& option);
 
 /// A positional argument: its option name inside Boost, what help calls it, and what it is.
+/// With `values` instead of `value` it takes every remaining positional argument (one or more), so
+/// it must come last.
 struct positional_argument {
     std::string name;       // e.g. "file"
     std::string shown_as;   // e.g. "FILE"
     std::string meaning;    // e.g. "the recording (HDF5, native layout)"
     std::string* value;
+    std::vector<std::string>* values = nullptr;
 };
 
 /// Parses argv for one subcommand: named options, required positional arguments, --help. Returns
 /// false when help was printed (the caller then returns 0). Option names must be spelled in full.
-/// Boost's parse errors become usage_error.
+/// Boost's parse errors become usage_error. `epilogue` follows the exit codes in --help.
+///
+/// Two options are left out of --help because `rastrum batch` asks them of its analyses:
+/// `--describe-options` prints `options` as JSON and returns false, and, for the kinds in
+/// analysis_kinds(), `--check-options` makes analyse_and_write return before reading anything.
 bool parse_command(int argc, char** argv, const std::string& command, const std::string& synopsis,
                    const po::options_description& options, const std::vector<positional_argument>& positional,
-                   po::variables_map& vm);
+                   po::variables_map& vm, const std::string& epilogue = "");
 
 /// A double option whose help shows its default as people write it (0.03, not 0.029999...).
 po::typed_value<double>* number_value(double* target);
@@ -51,6 +58,8 @@ std::uint64_t parse_whole_number(const std::string& text, const std::string& opt
 
 /// The whole command line as typed, for provenance.
 std::string joined_command_line(int argc, char** argv);
+/// The same for a list of arguments.
+std::string joined_command_line(const std::vector<std::string>& arguments);
 
 /// Checks, before any work is done, that each output path can be written: its folder exists, it is
 /// not an input, and no two outputs share a path. Throws usage_error.
@@ -101,10 +110,12 @@ struct output_choice {
     std::optional<std::string> h5;
     bool quiet = false;
     std::string progress = "auto";
+    bool check_only = false;  // --check-options: every option is checked, nothing is read or written
 };
 
 /// Checks the outputs of `shared` against the input files before any work is done.
-output_choice choose_outputs(const shared_options& shared, const std::vector<std::string>& inputs);
+output_choice choose_outputs(const shared_options& shared, const po::variables_map& vm,
+                             const std::vector<std::string>& inputs);
 
 /// What an analysis produces for its outputs.
 struct rendered_results {

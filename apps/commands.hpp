@@ -7,4 +7,6 @@ int run_direct(int argc, char** argv);
 int run_synth(int argc, char** argv);
 int run_stiminfo(int argc, char** argv);
 int run_convert(int argc, char** argv);
+int run_batch(int argc, char** argv);
+int run_figures(int argc, char** argv);
 }  // namespace rastrum::app

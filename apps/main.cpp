@@ -1,6 +1,6 @@
 // rastrum: the command. Parses the subcommand, runs it, and maps every failure to one exit code
 // (documented in --help and README): 0 success, 1 unexpected, 2 usage, 3 invalid input,
-// 4 data that cannot support the analysis.
+// 4 data that cannot support the analysis; batch adds 5 (some task failed) and 128 + signal.
 #include "commands.hpp"
 
 #include <rastrum/errors.hpp>
@@ -24,12 +24,15 @@ void print_overview() {
                  "           stimulus, extrapolated to infinite data and word length\n"
                  "  stiminfo stimulus information: bits about which of several labelled conditions was shown,\n"
                  "           by six estimators, with a label-shuffle null and a bootstrap interval\n"
+                 "  batch    run the analyses of a plan file over many recordings, each task in its own process,\n"
+                 "           with a manifest; re-runs skip tasks whose inputs and options are unchanged\n"
+                 "  figures  SVG figures and a report page (index.html) from results of direct and stiminfo\n"
                  "  synth    write a synthetic recording with known answers\n"
                  "  convert  write a recording read from NWB, a MAT-file, CSV (or the native layout) in the\n"
                  "           native layout, checked to read back identical\n\n"
                  "'rastrum COMMAND --help' describes each command.\n\n"
                  "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
-                 "4 the data cannot support the analysis.\n";
+                 "4 the data cannot support the analysis; batch: 5 some task failed, 128 + N stopped by signal N.\n";
 }
 
 }  // namespace
@@ -55,6 +58,8 @@ int main(int argc, char** argv) {
         if (command == "synth") return rastrum::app::run_synth(argc - 1, argv + 1);
         if (command == "stiminfo") return rastrum::app::run_stiminfo(argc - 1, argv + 1);
         if (command == "convert") return rastrum::app::run_convert(argc - 1, argv + 1);
+        if (command == "batch") return rastrum::app::run_batch(argc - 1, argv + 1);
+        if (command == "figures") return rastrum::app::run_figures(argc - 1, argv + 1);
         std::cerr << "rastrum: error: unknown command '" << command << "'\nTry 'rastrum --help'.\n";
         return exit_usage;
     } catch (const rastrum::usage_error& e) {

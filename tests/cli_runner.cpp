@@ -26,13 +26,19 @@ std::string fresh_folder(const std::string& name) {
 }
 
 namespace {
-process_result run_with(const std::string& prefix, const std::string& args) {
+
+std::string output_base() {
     static int serial = 0;
-    const std::string base = std::string(RASTRUM_TEST_TMP) + "/run-" + std::to_string(::getpid()) + "-" +
-                             std::to_string(serial++);
-    const std::string command = prefix + "'" + RASTRUM_BINARY + "' " + args + " </dev/null >'" + base +
-                                ".out' 2>'" + base + ".err'";
-    const int status = std::system(command.c_str());
+    return std::string(RASTRUM_TEST_TMP) + "/run-" + std::to_string(::getpid()) + "-" + std::to_string(serial++);
+}
+
+// The shell command that runs rastrum with ARGS (through `runner`, such as "timeout 60 ", when
+// given), its output going to BASE.out and BASE.err.
+std::string shell_command(const std::string& args, const std::string& base, const std::string& runner = "") {
+    return "exec " + runner + "'" + RASTRUM_BINARY + "' " + args + " </dev/null >'" + base + ".out' 2>'" + base + ".err'";
+}
+
+process_result collect(int status, const std::string& base) {
     process_result r;
     r.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
     r.out = read_file(base + ".out");
@@ -41,13 +47,44 @@ process_result run_with(const std::string& prefix, const std::string& args) {
     std::filesystem::remove(base + ".err");
     return r;
 }
+
 }  // namespace
 
-process_result run_rastrum(const std::string& args) { return run_with("", args); }
+process_result run_rastrum(const std::string& args) {
+    const std::string base = output_base();
+    return collect(std::system(shell_command(args, base).c_str()), base);
+}
 
 process_result run_rastrum_limited(const std::string& args, unsigned seconds, unsigned long memory_kib) {
+    const std::string base = output_base();
     // POSIX sh: the limit applies to the timeout process and the rastrum it starts.
-    return run_with("ulimit -v " + std::to_string(memory_kib) + "; timeout " + std::to_string(seconds) + " ", args);
+    const std::string command = "ulimit -v " + std::to_string(memory_kib) + "; " +
+                                shell_command(args, base, "timeout " + std::to_string(seconds) + " ");
+    return collect(std::system(command.c_str()), base);
+}
+
+process_result run_rastrum_in(const std::string& folder, const std::string& args) {
+    const std::string base = output_base();
+    return collect(std::system(("cd '" + folder + "' && " + shell_command(args, base)).c_str()), base);
+}
+
+background_rastrum start_rastrum(const std::string& args) {
+    background_rastrum run{0, output_base()};
+    const std::string command = shell_command(args, run.base);
+    run.pid = ::fork();
+    if (run.pid == 0) {
+        ::execl("/bin/sh", "sh", "-c", command.c_str(), static_cast<char*>(nullptr));
+        ::_exit(127);
+    }
+    return run;
+}
+
+process_result finish_rastrum(const background_rastrum& run) {
+    int status = 0;
+    ::waitpid(run.pid, &status, 0);
+    process_result r = collect(status, run.base);
+    if (WIFSIGNALED(status)) r.exit_code = 128 + WTERMSIG(status);
+    return r;
 }
 
 }  // namespace rastrum::testing

@@ -18,6 +18,18 @@ process_result run_rastrum(const std::string& args);
 /// memory they cannot justify.
 process_result run_rastrum_limited(const std::string& args, unsigned seconds, unsigned long memory_kib);
 
+/// The same from the working directory `folder`.
+process_result run_rastrum_in(const std::string& folder, const std::string& args);
+
+/// `rastrum ARGS` started in the background, for tests that signal it while it works.
+struct background_rastrum {
+    int pid = 0;
+    std::string base;  // where its stdout and stderr go
+};
+background_rastrum start_rastrum(const std::string& args);
+/// Waits for it; exit_code is 128 + N when signal N ended it, as a shell reports.
+process_result finish_rastrum(const background_rastrum& run);
+
 /// A fresh, empty folder under the test build's tmp/ for one test.
 std::string fresh_folder(const std::string& name);
 

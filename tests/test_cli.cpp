@@ -178,20 +178,23 @@ TEST(cli, malformed_recordings_exit_3_naming_the_hdf5_path) {
     }
 }
 
-// The bundled demo recording is what the project's own generator makes with the documented command.
+// The bundled demo recordings are what the project's own generator makes with the documented commands.
 TEST(cli, demo_recording_is_made_by_the_documented_command) {
     const std::string folder = fresh_folder("cli-demo");
     const std::string script = std::string(RASTRUM_SOURCE_DIR) + "/demo-recordings/make-demo-recordings.sh";
     ASSERT_EQ(std::system(("bash '" + script + "' '" + RASTRUM_BINARY + "' '" + folder + "' 2>/dev/null").c_str()), 0);
-    const auto fresh = rastrum::read_recording_hdf5(folder + "/flicker-tectum.h5");
-    const auto bundled = rastrum::read_recording_hdf5(std::string(RASTRUM_SOURCE_DIR) + "/demo-recordings/flicker-tectum.h5");
-    ASSERT_EQ(fresh.units.size(), bundled.units.size());
-    for (std::size_t u = 0; u < fresh.units.size(); ++u) {
-        EXPECT_EQ(fresh.units[u].id, bundled.units[u].id);
-        EXPECT_EQ(fresh.units[u].spike_times, bundled.units[u].spike_times) << fresh.units[u].id;
+    for (const std::string name: {"flicker-tectum.h5", "whisker-barrel.h5"}) {
+        const auto fresh = rastrum::read_recording_hdf5(folder + "/" + name);
+        const auto bundled = rastrum::read_recording_hdf5(std::string(RASTRUM_SOURCE_DIR) + "/demo-recordings/" + name);
+        ASSERT_EQ(fresh.units.size(), bundled.units.size()) << name;
+        for (std::size_t u = 0; u < fresh.units.size(); ++u) {
+            EXPECT_EQ(fresh.units[u].id, bundled.units[u].id) << name;
+            EXPECT_EQ(fresh.units[u].spike_times, bundled.units[u].spike_times) << name << " " << fresh.units[u].id;
+        }
+        EXPECT_EQ(fresh.trial_start, bundled.trial_start) << name;
+        EXPECT_EQ(fresh.trial_stop, bundled.trial_stop) << name;
+        EXPECT_EQ(fresh.stimulus, bundled.stimulus) << name;
     }
-    EXPECT_EQ(fresh.trial_start, bundled.trial_start);
-    EXPECT_EQ(fresh.trial_stop, bundled.trial_stop);
 }
 
 TEST(cli, nothing_the_user_had_is_overwritten_by_synth) {
