@@ -459,6 +459,23 @@ std::vector<std::int64_t> source::read_int64(const std::string& object, shape ac
 
 std::vector<std::string> source::read_string_elements(const H5::DataSet& ds, const H5::StrType& type,
                                                       std::size_t elements, const std::string& object) {
+    // Variable-length strings live in the global heap, and nothing stops a crafted file from
+    // pointing many elements at one large heap object: their total is asked of the library (which
+    // sums the lengths without reading the strings) and held against the file before the read.
+    if (elements > 0 && H5Tis_variable_str(type.getId()) > 0) {
+        H5::StrType memory(H5::PredType::C_S1, H5T_VARIABLE);
+        memory.setCset(H5Tget_cset(type.getId()));  // HDF5 converts no character set into another
+        const H5::DataSpace space = ds.getSpace();
+        hsize_t bytes = 0;
+        forget_library_message();
+        if (H5Dvlen_get_buf_size(ds.getId(), memory.getId(), space.getId(), &bytes) < 0) {
+            throw input_error(path_, object, "readable variable-length strings", "an HDF5 error: " + captured_message());
+        }
+        if (bytes > file_size_) {
+            throw input_error(path_, object, "strings that fit in the file (" + bytes_text(file_size_) + ")",
+                              "strings of " + bytes_text(bytes) + " in all");
+        }
+    }
     std::vector<std::string> values = decode_strings(
         type, elements, [&](void* buffer, const H5::DataType& memory) { ds.read(buffer, memory); });
     for (std::size_t i = 0; i < values.size(); ++i) {
