@@ -113,8 +113,15 @@ TEST(cli_figures, writes_the_page_and_well_formed_figures_of_both_analyses) {
     EXPECT_EQ(page.find("https://"), std::string::npos);
     EXPECT_EQ(page.find("<script"), std::string::npos);
     EXPECT_EQ(page.find("<link"), std::string::npos);
-    // The recording is the direct result's, not the stiminfo results': the page says so.
-    EXPECT_NE(page.find("is not the file"), std::string::npos);
+    // The recording is the direct result's: its units get rasters, and since one result was computed
+    // from it no mismatch is reported (design: a report may gather results of several recordings).
+    EXPECT_EQ(page.find("is not the file"), std::string::npos);
+    EXPECT_NE(page.find("Spikes in the recording"), std::string::npos);
+    // A recording that no result was computed from is drawn with a notice.
+    const std::string other = fresh_folder("figures-other") + "/report";
+    const auto mismatch = run_rastrum(figures(in.stiminfo_single + " --recording " + in.recording + " --out " + other));
+    ASSERT_EQ(mismatch.exit_code, 0) << mismatch.err;
+    EXPECT_NE(read_file(other + "/index.html").find("is not the file"), std::string::npos);
 }
 
 TEST(cli_figures, same_inputs_give_byte_identical_files) {
