@@ -48,7 +48,15 @@ if [ "$mode" = demo ]; then
   ./build/rastrum survey "$recording" --json out/demo/survey.json
   echo
   ./build/rastrum direct "$recording" --bin-ms 2,4 --letters 1-8 --null-rotations 19 \
-    --json out/demo/direct.json --csv out/demo/direct.csv
+    --json out/demo/direct.json --csv out/demo/direct.csv --curves-csv out/demo/direct-curves.csv \
+    --h5 out/demo/direct.h5
+  echo
+  ./build/rastrum stiminfo demo-recordings/whisker-barrel.h5 --window-ms 0:300 --code count \
+    --slide-ms 100:50 --population u1,u3 --json out/demo/stiminfo.json --csv out/demo/stiminfo.csv
+  echo
+  ./build/rastrum figures out/demo/direct.json out/demo/stiminfo.json \
+    --recording "$recording" --out out/demo/report
+  echo "Report: out/demo/report/index.html (open it in a browser; it needs no network)"
 else
   ctest --test-dir build --output-on-failure -j"$jobs"
 fi

@@ -19,7 +19,7 @@ int run_figures(int argc, char** argv) {
         ("out", po::value(&out)->required(),
          "folder for index.html and the SVG figures; created if absent (its parent must exist); in an existing folder "
          "only files rastrum wrote there are replaced")
-        ("recording", po::value(&recording_path), "the recording the results came from: adds a raster and PSTH per unit")
+        ("recording", po::value(&recording_path), "the recording the results came from: adds a raster and PSTH per unit of the results computed from it (matched by SHA-256)")
         ("unit", po::value(&request.units.ids)->composing(), "draw this unit (repeat for several); every unit when absent")
         ("psth-ms", po::value(&psth_text), "PSTH bin width in ms; by default a 1-2-5 value near 1/60 of the shortest trial")
         ("quiet,q", po::bool_switch(&quiet), "no status lines");

@@ -113,8 +113,15 @@ TEST(cli_figures, writes_the_page_and_well_formed_figures_of_both_analyses) {
     EXPECT_EQ(page.find("https://"), std::string::npos);
     EXPECT_EQ(page.find("<script"), std::string::npos);
     EXPECT_EQ(page.find("<link"), std::string::npos);
-    // The recording is the direct result's, not the stiminfo results': the page says so.
-    EXPECT_NE(page.find("is not the file"), std::string::npos);
+    // The recording is the direct result's: its units get rasters, and since one result was computed
+    // from it no mismatch is reported (design: a report may gather results of several recordings).
+    EXPECT_EQ(page.find("is not the file"), std::string::npos);
+    EXPECT_NE(page.find("Spikes in the recording"), std::string::npos);
+    // A recording that no result was computed from is drawn with a notice.
+    const std::string other = fresh_folder("figures-other") + "/report";
+    const auto mismatch = run_rastrum(figures(in.stiminfo_single + " --recording " + in.recording + " --out " + other));
+    ASSERT_EQ(mismatch.exit_code, 0) << mismatch.err;
+    EXPECT_NE(read_file(other + "/index.html").find("is not the file"), std::string::npos);
 }
 
 TEST(cli_figures, same_inputs_give_byte_identical_files) {
@@ -302,4 +309,12 @@ TEST(cli_figures, the_readme_figure_is_what_the_documented_commands_make) {
     EXPECT_EQ(read_file(folder + "/report/demo-summary.svg"),
               read_file(std::string(RASTRUM_SOURCE_DIR) + "/notes/figures/demo-summary.svg"))
         << "remake notes/figures/demo-summary.svg with the commands in notes/figures.md";
+    // The sweep the README shows, by the commands it gives.
+    ASSERT_EQ(run_rastrum("direct " + demo + " --unit u3 --bin-ms 1,2,4,8 --letters 1-10 --quiet --json " + folder +
+                          "/sweep.json").exit_code, 0);
+    ASSERT_EQ(run_rastrum(figures(folder + "/sweep.json --quiet --out " + folder + "/sweep")).exit_code, 0);
+    for (const char* name: {"sweep-rates-vs-bin-width-u3.svg", "sweep-word-length-u3-2ms.svg"}) {
+        EXPECT_EQ(read_file(folder + "/sweep/" + name), read_file(std::string(RASTRUM_SOURCE_DIR) + "/notes/figures/" + name))
+            << "remake notes/figures/" << name << " with the commands in README (A sweep)";
+    }
 }

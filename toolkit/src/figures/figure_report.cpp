@@ -86,15 +86,24 @@ figure_report make_figure_report(const figure_report_request& request) {
         const recording rec = read_recording_hdf5(*request.recording);
         contents.recording_path = *request.recording;
         const std::string sha = file_sha256(*request.recording);
+        // Rasters are drawn for the units of the results computed from this recording; results of
+        // other recordings (a report may gather several) get none. Only when no result matches is
+        // the recording drawn anyway, with a notice, since then it may not be what the user meant.
+        std::vector<const result_document*> from_recording;
         for (const auto& r: results) {
             const auto& input = r.content.value("input", nlohmann::ordered_json::object());
-            if (input.value("sha256", std::string()) != sha) {
+            if (input.value("sha256", std::string()) == sha) from_recording.push_back(&r);
+        }
+        if (from_recording.empty()) {
+            for (const auto& r: results) {
+                from_recording.push_back(&r);
                 contents.notices.push_back("The recording " + *request.recording + " is not the file " + r.path +
                                            " was computed from (its SHA-256 differs): rasters may not match the numbers.");
             }
         }
         std::vector<std::string> units;
-        for (const auto& r: results) {
+        for (const result_document* document: from_recording) {
+            const result_document& r = *document;
             for (const auto& u: units_of(r)) {
                 if (!request.units.wants(u) || std::find(units.begin(), units.end(), u) != units.end()) continue;
                 const bool present = std::any_of(rec.units.begin(), rec.units.end(), [&](const unit_spikes& s) { return s.id == u; });

@@ -219,18 +219,19 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
             s << "\nPopulations, by " << info_estimator_name(q.population_estimator)
               << " (independent: plug-in product of the units' conditional distributions, extrapolated);\n"
                  "synergy = joint - sum of the units alone (negative: redundancy); 95% intervals below each value\n";
-            std::snprintf(line, sizeof line, "%*s %16s %16s %16s %16s %17s\n", static_cast<int>(unit_width), "units", "joint",
-                          "sum", "synergy", "independent", "shuffle-corrected");
+            std::snprintf(line, sizeof line, "%*s  window ms %16s %16s %16s %16s %17s\n", static_cast<int>(unit_width), "units",
+                          "joint", "sum", "synergy", "independent", "shuffle-corrected");
             s << line;
         }
         populations = true;
         const auto& v = r.population->values;
-        std::snprintf(line, sizeof line, "%*s %16.4f %16.4f %16.4f %16.4f %17.4f\n", static_cast<int>(unit_width),
-                      r.unit.c_str(), v.joint, v.sum_single, v.synergy, v.independent, v.shuffle_corrected);
+        std::snprintf(line, sizeof line, "%*s %5g-%-5g %16.4f %16.4f %16.4f %16.4f %17.4f\n", static_cast<int>(unit_width),
+                      r.unit.c_str(), r.window.first * 1000, r.window.second * 1000, v.joint, v.sum_single, v.synergy,
+                      v.independent, v.shuffle_corrected);
         s << line;
         const auto& lo = r.population->low;
         const auto& hi = r.population->high;
-        std::snprintf(line, sizeof line, "%*s %16s %16s %16s %16s %17s\n", static_cast<int>(unit_width), "",
+        std::snprintf(line, sizeof line, "%*s %11s %16s %16s %16s %16s %17s\n", static_cast<int>(unit_width), "", "",
                       interval_text(intervals, lo.joint, hi.joint).c_str(),
                       interval_text(intervals, lo.sum_single, hi.sum_single).c_str(),
                       interval_text(intervals, lo.synergy, hi.synergy).c_str(),
