@@ -43,12 +43,14 @@ int run_direct(int argc, char** argv) {
         ("threads", po::value(&threads_text)->default_value(threads_text),
          "worker threads (0: one per core); results do not depend on it");
     add_shared_options(options, shared, "one row per unit, bin width and word length");
+    input_options input;
+    add_input_options(options, input);
     po::variables_map vm;
     if (!parse_command(argc, argv, "direct",
-                       "FILE --bin-ms B[,B...] --letters A-B [--unit ID]... [--stimulus LABEL] [--binary] "
+                       "FILE [input options] --bin-ms B[,B...] --letters A-B [--unit ID]... [--stimulus LABEL] [--binary] "
                        "[--fit-letters A-B] [--trials LIST] [--exclude-trials LIST] [--seed N] [--threads N] [--json OUT] [--csv OUT] "
                        "[--curves-csv OUT] [--h5 OUT]",
-                       options, {{"file", "FILE", "the recording (HDF5, native layout)", &file}}, vm)) {
+                       options, {{"file", "FILE", recording_file_meaning, &file}}, vm)) {
         return 0;
     }
     request.bin_ms = parse_number_list(bin_text, "--bin-ms");
@@ -62,8 +64,9 @@ int run_direct(int argc, char** argv) {
     request.settings.subsets = parse_subset_estimator(subset_text);
     request.trials = trials_of(shared);
     check_direct_request(request);
-    const output_choice out = choose_outputs(shared, vm, file);
-    return analyse_and_write(argc, argv, file, request.threads, out, [&](const recording& rec, provenance& origin) {
+    const recording_source source = source_of(file, input);
+    const output_choice out = choose_outputs(shared, vm, source_files(source));
+    return analyse_and_write(argc, argv, source, request.threads, out, [&](const recording& rec, provenance& origin) {
         std::vector<direct_record> records;
         {
             progress_display shown(parse_progress_style(out.progress), out.quiet, "direct");

@@ -63,12 +63,14 @@ int run_stiminfo(int argc, char** argv) {
         ("seed", po::value(&seed_text)->default_value(seed_text), "seed of shuffles, resamples and splits (a whole number)")
         ("threads", po::value(&threads_text)->default_value(threads_text), "worker threads (0: one per core); results do not depend on it");
     add_shared_options(options, shared, "one row per record (unit or population, and window) and estimator");
+    input_options input;
+    add_input_options(options, input);
     po::variables_map vm;
     if (!parse_command(argc, argv, "stiminfo",
-                       "FILE --window-ms A:B --code count|word|latency [--bin-ms B] [--binary] [--unit ID]... [--population ID,ID,...]... "
+                       "FILE [input options] --window-ms A:B --code count|word|latency [--bin-ms B] [--binary] [--unit ID]... [--population ID,ID,...]... "
                        "[--estimators LIST] [--null-shuffles N] [--slide-ms W:S] [--trials LIST] [--exclude-trials LIST] [--seed N] [--threads N] "
                        "[--json OUT] [--csv OUT] [--curves-csv OUT] [--h5 OUT]",
-                       options, {{"file", "FILE", "the recording (HDF5, native layout) with /trials/stimulus labels", &file}},
+                       options, {{"file", "FILE", std::string(recording_file_meaning) + "; its trials need labels", &file}},
                        vm)) {
         return 0;
     }
@@ -96,8 +98,9 @@ int run_stiminfo(int argc, char** argv) {
     request.settings.seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
     request.threads = static_cast<unsigned>(parse_whole_number(threads_text, "--threads", 0, 1024));
     check_stiminfo_request(request);
-    const output_choice out = choose_outputs(shared, vm, file);
-    return analyse_and_write(argc, argv, file, request.threads, out, [&](const recording& rec, provenance& origin) {
+    const recording_source source = source_of(file, input);
+    const output_choice out = choose_outputs(shared, vm, source_files(source));
+    return analyse_and_write(argc, argv, source, request.threads, out, [&](const recording& rec, provenance& origin) {
         std::vector<stiminfo_record> records;
         {
             progress_display shown(parse_progress_style(out.progress), out.quiet, "stiminfo");

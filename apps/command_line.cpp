@@ -7,6 +7,7 @@
 #include <rastrum/errors.hpp>
 #include <rastrum/parallel.hpp>
 #include <rastrum/recording_hdf5.hpp>
+#include <rastrum/recording_source.hpp>
 #include <rastrum/sha256.hpp>
 #include <rastrum/version.hpp>
 #include <rastrum/format.hpp>
@@ -209,6 +210,50 @@ void add_shared_options(po::options_description& options, shared_options& shared
         ("quiet,q", po::bool_switch(&shared.quiet), "no table, no progress and no status lines");
 }
 
+const char* const recording_file_meaning =
+    "the recording: HDF5 in the native layout, NWB 2.x, a MATLAB 7.3 MAT-file, or a spikes CSV (unit,time_s) with "
+    "--trials-csv; the format is found from the content";
+
+void add_input_options(po::options_description& options, input_options& input) {
+    recording_source& s = input.source;
+    auto text = [](std::optional<std::string>& target) {
+        return po::value<std::string>()->notifier([&target](const std::string& v) { target = v; });
+    };
+    po::options_description group("Input options (which format, and where units, trials and labels are)");
+    group.add_options()
+        ("format", po::value(&input.format)->default_value(input.format),
+         "auto (from the file's content), native, nwb, mat or text")
+        ("stimulus-column", text(s.stimulus_column)->value_name("NAME"),
+         "NWB and text: the column of the trials table (or trials CSV) holding each trial's label; by default a "
+         "column named stimulus when there is one ('rastrum survey' lists the columns)")
+        ("intervals", text(s.nwb.intervals)->value_name("NAME"),
+         "NWB: the table in /intervals holding the trials (default trials)")
+        ("unit-column", text(s.nwb.unit_column)->value_name("NAME"),
+         "NWB: the column of /units giving unit ids (default unit_name when present, else id)")
+        ("mat-spikes", text(s.mat.spikes)->value_name("VAR"),
+         "MAT-file: the cell array of spike-time vectors in seconds, one cell per unit")
+        ("mat-trial-start", text(s.mat.trial_start)->value_name("VAR"), "MAT-file: the vector of trial start times (s)")
+        ("mat-trial-stop", text(s.mat.trial_stop)->value_name("VAR"), "MAT-file: the vector of trial stop times (s)")
+        ("mat-stimulus", text(s.mat.stimulus)->value_name("VAR"),
+         "MAT-file: one label per trial, a numeric vector or a cell array of char vectors")
+        ("mat-unit-ids", text(s.mat.unit_ids)->value_name("VAR"),
+         "MAT-file: one id per cell of --mat-spikes (numbers or char vectors); default u1, u2, ...")
+        ("trials-csv", text(s.trials_csv)->value_name("PATH"),
+         "text: the trials CSV (header start_s,stop_s and optionally a label column) beside FILE, the spikes CSV "
+         "(header unit,time_s)");
+    options.add(group);
+}
+
+recording_source source_of(const std::string& file, const input_options& input) {
+    recording_source source = input.source;
+    source.path = file;
+    if (input.format != "auto") {
+        source.format = format_named(input.format);
+        if (!source.format) throw usage_error("--format " + input.format + ": choose auto, native, nwb, mat or text");
+    }
+    return source;
+}
+
 trial_selection trials_of(const shared_options& shared) {
     trial_selection s;
     if (!shared.trials.empty()) s.only = parse_trial_list(shared.trials, "--trials");
@@ -216,7 +261,8 @@ trial_selection trials_of(const shared_options& shared) {
     return s;
 }
 
-output_choice choose_outputs(const shared_options& shared, const po::variables_map& vm, const std::string& input) {
+output_choice choose_outputs(const shared_options& shared, const po::variables_map& vm,
+                             const std::vector<std::string>& inputs) {
     output_choice out;
     out.quiet = shared.quiet;
     out.check_only = vm.count("check-options") > 0;
@@ -231,7 +277,7 @@ output_choice choose_outputs(const shared_options& shared, const po::variables_m
                                       std::make_pair(out.h5, "--h5")}) {
         if (path && *path == "-") throw usage_error(std::string(option) + " needs a file name");
     }
-    check_output_paths({out.json, out.csv, out.curves_csv, out.h5}, {input});
+    check_output_paths({out.json, out.csv, out.curves_csv, out.h5}, inputs);
     return out;
 }
 
@@ -250,18 +296,26 @@ std::function<void(const std::string&)> h5_writer(nlohmann::ordered_json result,
     };
 }
 
-int analyse_and_write(int argc, char** argv, const std::string& file, unsigned threads, const output_choice& out,
+recording read_input(const recording_source& source, bool quiet, provenance& origin) {
+    origin.input_path = source.path;
+    recording rec = read_recording(source);
+    origin.input_sha256 = file_sha256(source.path);
+    origin.input_read = origin_json(rec);
+    const std::vector<std::string> files = source_files(source);
+    for (std::size_t i = 1; i < files.size(); ++i) origin.other_inputs.emplace_back(files[i], file_sha256(files[i]));
+    for (const auto& w: rec.warnings) note(quiet, "warning: " + w);
+    return rec;
+}
+
+int analyse_and_write(int argc, char** argv, const recording_source& source, unsigned threads, const output_choice& out,
                       const std::function<rendered_results(const recording&, provenance&)>& analyse) {
     if (out.check_only) return 0;
     provenance origin;
     // argv[0] is the subcommand's name; the program's own name sits just before it.
     origin.command_line = joined_command_line(argc + 1, argv - 1);
-    origin.input_path = file;
     origin.started_utc = utc_now();
     origin.threads = effective_threads(threads);
-    const recording rec = read_recording_hdf5(file);
-    origin.input_sha256 = file_sha256(file);
-    for (const auto& w: rec.warnings) note(out.quiet, "warning: " + w);
+    const recording rec = read_input(source, out.quiet, origin);
     const rendered_results results = analyse(rec, origin);
     std::vector<std::pair<std::string, std::string>> files;
     if (out.json && *out.json != "-") files.emplace_back(*out.json, results.json);

@@ -4,6 +4,7 @@
 #include <rastrum/curves.hpp>
 #include <rastrum/provenance.hpp>
 #include <rastrum/recording.hpp>
+#include <rastrum/recording_source.hpp>
 
 #include <boost/program_options.hpp>
 
@@ -64,6 +65,23 @@ std::string joined_command_line(const std::vector<std::string>& arguments);
 /// not an input, and no two outputs share a path. Throws usage_error.
 void check_output_paths(const std::vector<std::optional<std::string>>& outputs, const std::vector<std::string>& inputs);
 
+/// How every command that reads a recording finds it: the format (detected from the content unless
+/// --format says) and the objects that hold units, trials and labels in NWB, MAT and text inputs.
+struct input_options {
+    std::string format = "auto";
+    recording_source source;  // everything but the path, which is the command's FILE
+};
+
+/// Declares --format, --stimulus-column, --intervals, --unit-column, --mat-spikes,
+/// --mat-trial-start, --mat-trial-stop, --mat-stimulus, --mat-unit-ids and --trials-csv.
+void add_input_options(po::options_description& options, input_options& input);
+
+/// The recording FILE with those options. Throws usage_error for an unknown --format.
+recording_source source_of(const std::string& file, const input_options& input);
+
+/// What help says FILE is, for every command that reads a recording.
+extern const char* const recording_file_meaning;
+
 /// The options every analysis takes: which trials, where results go, and how it talks to people.
 struct shared_options {
     std::string trials;
@@ -95,8 +113,9 @@ struct output_choice {
     bool check_only = false;  // --check-options: every option is checked, nothing is read or written
 };
 
-/// Checks the outputs of `shared` against the input before any work is done.
-output_choice choose_outputs(const shared_options& shared, const po::variables_map& vm, const std::string& input);
+/// Checks the outputs of `shared` against the input files before any work is done.
+output_choice choose_outputs(const shared_options& shared, const po::variables_map& vm,
+                             const std::vector<std::string>& inputs);
 
 /// What an analysis produces for its outputs.
 struct rendered_results {
@@ -118,10 +137,14 @@ std::string provenance_of(const nlohmann::ordered_json& result);
 /// results file, when called with the path.
 std::function<void(const std::string&)> h5_writer(nlohmann::ordered_json result, std::vector<curve_series> curves);
 
+/// Reads the recording, prints the loader's warnings (unless quiet) and fills the input part of
+/// `origin`: path, sha256 of every file read, and what was read from where.
+recording read_input(const recording_source& source, bool quiet, provenance& origin);
+
 /// The part every analysis command shares: reads the recording (loader warnings to stderr), fills
 /// the provenance, lets `analyse` run and render (it sets `finished_utc`), writes the outputs all
 /// together and atomically, and prints the table or the JSON.
-int analyse_and_write(int argc, char** argv, const std::string& file, unsigned threads, const output_choice& out,
+int analyse_and_write(int argc, char** argv, const recording_source& source, unsigned threads, const output_choice& out,
                       const std::function<rendered_results(const recording&, provenance&)>& analyse);
 
 /// Status and progress lines for people go to stderr, never stdout.

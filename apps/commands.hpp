@@ -6,6 +6,7 @@ int run_survey(int argc, char** argv);
 int run_direct(int argc, char** argv);
 int run_synth(int argc, char** argv);
 int run_stiminfo(int argc, char** argv);
+int run_convert(int argc, char** argv);
 int run_batch(int argc, char** argv);
 int run_figures(int argc, char** argv);
 }  // namespace rastrum::app

@@ -27,7 +27,9 @@ void print_overview() {
                  "  batch    run the analyses of a plan file over many recordings, each task in its own process,\n"
                  "           with a manifest; re-runs skip tasks whose inputs and options are unchanged\n"
                  "  figures  SVG figures and a report page (index.html) from results of direct and stiminfo\n"
-                 "  synth    write a synthetic recording with known answers\n\n"
+                 "  synth    write a synthetic recording with known answers\n"
+                 "  convert  write a recording read from NWB, a MAT-file, CSV (or the native layout) in the\n"
+                 "           native layout, checked to read back identical\n\n"
                  "'rastrum COMMAND --help' describes each command.\n\n"
                  "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
                  "4 the data cannot support the analysis; batch: 5 some task failed, 128 + N stopped by signal N.\n";
@@ -55,6 +57,7 @@ int main(int argc, char** argv) {
         if (command == "direct") return rastrum::app::run_direct(argc - 1, argv + 1);
         if (command == "synth") return rastrum::app::run_synth(argc - 1, argv + 1);
         if (command == "stiminfo") return rastrum::app::run_stiminfo(argc - 1, argv + 1);
+        if (command == "convert") return rastrum::app::run_convert(argc - 1, argv + 1);
         if (command == "batch") return rastrum::app::run_batch(argc - 1, argv + 1);
         if (command == "figures") return rastrum::app::run_figures(argc - 1, argv + 1);
         std::cerr << "rastrum: error: unknown command '" << command << "'\nTry 'rastrum --help'.\n";

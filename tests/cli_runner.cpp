@@ -32,9 +32,10 @@ std::string output_base() {
     return std::string(RASTRUM_TEST_TMP) + "/run-" + std::to_string(::getpid()) + "-" + std::to_string(serial++);
 }
 
-// The shell command that runs rastrum with ARGS, its output going to BASE.out and BASE.err.
-std::string shell_command(const std::string& args, const std::string& base) {
-    return std::string("exec '") + RASTRUM_BINARY + "' " + args + " </dev/null >'" + base + ".out' 2>'" + base + ".err'";
+// The shell command that runs rastrum with ARGS (through `runner`, such as "timeout 60 ", when
+// given), its output going to BASE.out and BASE.err.
+std::string shell_command(const std::string& args, const std::string& base, const std::string& runner = "") {
+    return "exec " + runner + "'" + RASTRUM_BINARY + "' " + args + " </dev/null >'" + base + ".out' 2>'" + base + ".err'";
 }
 
 process_result collect(int status, const std::string& base) {
@@ -52,6 +53,14 @@ process_result collect(int status, const std::string& base) {
 process_result run_rastrum(const std::string& args) {
     const std::string base = output_base();
     return collect(std::system(shell_command(args, base).c_str()), base);
+}
+
+process_result run_rastrum_limited(const std::string& args, unsigned seconds, unsigned long memory_kib) {
+    const std::string base = output_base();
+    // POSIX sh: the limit applies to the timeout process and the rastrum it starts.
+    const std::string command = "ulimit -v " + std::to_string(memory_kib) + "; " +
+                                shell_command(args, base, "timeout " + std::to_string(seconds) + " ");
+    return collect(std::system(command.c_str()), base);
 }
 
 process_result run_rastrum_in(const std::string& folder, const std::string& args) {

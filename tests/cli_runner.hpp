@@ -13,6 +13,11 @@ struct process_result {
 /// Runs `rastrum ARGS` (ARGS as typed in a shell) and collects its exit code and output.
 process_result run_rastrum(const std::string& args);
 
+/// As run_rastrum, within `seconds` (exit code 124 when it takes longer) and `memory_kib` KiB of
+/// virtual memory (an allocation beyond it fails): for inputs that must neither hang nor ask for
+/// memory they cannot justify.
+process_result run_rastrum_limited(const std::string& args, unsigned seconds, unsigned long memory_kib);
+
 /// The same from the working directory `folder`.
 process_result run_rastrum_in(const std::string& folder, const std::string& args);
 

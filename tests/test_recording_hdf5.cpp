@@ -582,6 +582,33 @@ TEST(Malformed, DatasetLargerThanTheFile) {
     expect_error(path, "/trials/start_time", "fits in the file", "10000000 elements");
 }
 
+TEST(Malformed, VariableLengthStringsSharingOneLargeHeapObject) {
+    // Each variable-length element is a 16-byte descriptor (length, global heap collection, index);
+    // copying the first one over the others makes 3 trials all name one 200000-byte string, 600 kB
+    // of labels in a file of about 220 kB, which must be refused before it is read (design: sizes
+    // against the file). The descriptor layout is HDF5's file format (from memory).
+    parts p;
+    p.stimulus = {std::string(200000, 'a'), "b", "c"};
+    const std::string path = write_file(p);
+    haddr_t offset = 0;
+    {
+        H5::H5File f(path, H5F_ACC_RDONLY);
+        offset = H5Dget_offset(f.openDataSet("/trials/stimulus").getId());
+    }
+    ASSERT_NE(offset, HADDR_UNDEF);
+    std::fstream file(path, std::ios::in | std::ios::out | std::ios::binary);
+    char first[16];
+    file.seekg(static_cast<std::streamoff>(offset));
+    file.read(first, sizeof first);
+    for (int i = 1; i < 3; ++i) {
+        file.seekp(static_cast<std::streamoff>(offset + 16 * static_cast<haddr_t>(i)));
+        file.write(first, sizeof first);
+    }
+    file.close();
+    ASSERT_LT(fs::file_size(path), 600000u);
+    expect_error(path, "/trials/stimulus", "fit in the file", "strings of 6000");  // 600003: with terminators
+}
+
 // --- the shared helpers, as a later loader will use them ----------------------------------------
 
 TEST(Helpers, Utf8Validation) {

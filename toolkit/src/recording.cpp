@@ -11,9 +11,8 @@ namespace rastrum {
 
 namespace {
 
-// Messages name objects by their place in the native layout (notes/recording-layout.md), whatever
-// format the recording came from: one vocabulary for the user, and loaders of other formats can
-// say where those objects came from in their own warnings.
+// By default messages name objects by their place in the native layout (notes/recording-layout.md);
+// loaders of other formats pass recording_places that name them in the source's own terms.
 std::string indexed(const std::string& object, std::size_t index) {
     return object + "[" + std::to_string(index) + "]";
 }
@@ -39,77 +38,64 @@ std::string listing(const std::vector<Item>& items, Show show, std::size_t limit
     return out;
 }
 
-void validate_units(const recording& rec) {
-    if (rec.units.empty()) {
-        throw input_error(rec.source, "/units", "at least one unit", "no units");
-    }
+input_error at(const place& where, const std::string& expected, const std::string& found) {
+    return input_error(where.file, where.object, expected, found);
+}
+
+void validate_units(const recording& rec, const recording_places& places) {
+    if (rec.units.empty()) throw at(places.units(), "at least one unit", "no units");
     std::unordered_set<std::string> seen;
-    for (const auto& u: rec.units) {
-        const std::string object = "/units/" + u.id + "/spike_times";
-        if (u.id.empty()) throw input_error(rec.source, "/units/", "a non-empty unit id", "an empty id");
-        if (!seen.insert(u.id).second) {
-            throw input_error(rec.source, "/units/" + u.id, "unit ids that differ", "this id twice");
-        }
-        for (std::size_t i = 0; i < u.spike_times.size(); ++i) {
-            if (!std::isfinite(u.spike_times[i])) {
-                throw input_error(rec.source, indexed(object, i), "a finite time in seconds",
-                                  number(u.spike_times[i]));
-            }
+    for (std::size_t u = 0; u < rec.units.size(); ++u) {
+        const auto& unit = rec.units[u];
+        if (unit.id.empty()) throw at(places.unit(u), "a non-empty unit id", "an empty id");
+        if (!seen.insert(unit.id).second) throw at(places.unit(u), "unit ids that differ", "this id twice");
+        const auto& times = unit.spike_times;
+        for (std::size_t i = 0; i < times.size(); ++i) {
+            if (!std::isfinite(times[i])) throw at(places.spike(u, i), "a finite time in seconds", number(times[i]));
             // align_to_trials binary-searches the spikes, so order is a precondition, not a nicety.
-            if (i > 0 && u.spike_times[i] < u.spike_times[i - 1]) {
-                throw input_error(rec.source, indexed(object, i),
-                                  "spike times in ascending order (>= " + number(u.spike_times[i - 1]) + ")",
-                                  number(u.spike_times[i]));
+            if (i > 0 && times[i] < times[i - 1]) {
+                throw at(places.spike(u, i), "spike times in ascending order (>= " + number(times[i - 1]) + ")",
+                         number(times[i]));
             }
         }
     }
 }
 
-void validate_trials(const recording& rec) {
+void validate_trials(const recording& rec, const recording_places& places) {
     const auto& start = rec.trial_start;
     const auto& stop = rec.trial_stop;
     if (stop.size() != start.size()) {
-        throw input_error(rec.source, "/trials/stop_time",
-                          std::to_string(start.size()) + " stop times, one per start time in /trials/start_time",
-                          std::to_string(stop.size()));
+        throw at(places.trial_stops(),
+                 std::to_string(start.size()) + " stop times, one per start time in " + places.trial_starts().object,
+                 std::to_string(stop.size()));
     }
-    if (start.empty()) {
-        throw input_error(rec.source, "/trials/start_time", "at least one trial", "no trials");
-    }
+    if (start.empty()) throw at(places.trial_starts(), "at least one trial", "no trials");
     for (std::size_t k = 0; k < start.size(); ++k) {
-        if (!std::isfinite(start[k])) {
-            throw input_error(rec.source, indexed("/trials/start_time", k), "a finite time in seconds",
-                              number(start[k]));
-        }
-        if (!std::isfinite(stop[k])) {
-            throw input_error(rec.source, indexed("/trials/stop_time", k), "a finite time in seconds",
-                              number(stop[k]));
-        }
+        if (!std::isfinite(start[k])) throw at(places.trial_start(k), "a finite time in seconds", number(start[k]));
+        if (!std::isfinite(stop[k])) throw at(places.trial_stop(k), "a finite time in seconds", number(stop[k]));
         if (!(stop[k] > start[k])) {
-            throw input_error(rec.source, indexed("/trials/stop_time", k),
-                              "a stop time after the start time " + number(start[k]), number(stop[k]));
+            throw at(places.trial_stop(k), "a stop time after the start time " + number(start[k]), number(stop[k]));
         }
     }
     // Trials are trusted in the order given rather than sorted, so a file whose order is wrong is
     // reported: silently reordering would also reorder the labels the user wrote beside them.
     for (std::size_t k = 1; k < start.size(); ++k) {
         if (!(start[k] > start[k - 1])) {
-            throw input_error(rec.source, indexed("/trials/start_time", k),
-                              "start times in ascending order (> " + number(start[k - 1]) + ", the start of trial " +
-                                  std::to_string(k - 1) + ")",
-                              number(start[k]));
+            throw at(places.trial_start(k),
+                     "start times in ascending order (> " + number(start[k - 1]) + ", the start of trial " +
+                         std::to_string(k - 1) + ")",
+                     number(start[k]));
         }
         if (stop[k - 1] > start[k]) {
-            throw input_error(rec.source, indexed("/trials/stop_time", k - 1),
-                              "trials that do not overlap: stop time <= " + number(start[k]) +
-                                  ", the start of trial " + std::to_string(k),
-                              number(stop[k - 1]));
+            throw at(places.trial_stop(k - 1),
+                     "trials that do not overlap: stop time <= " + number(start[k]) + ", the start of trial " +
+                         std::to_string(k),
+                     number(stop[k - 1]));
         }
     }
     if (!rec.stimulus.empty() && rec.stimulus.size() != start.size()) {
-        throw input_error(rec.source, "/trials/stimulus",
-                          std::to_string(start.size()) + " labels, one per trial",
-                          std::to_string(rec.stimulus.size()) + " labels");
+        throw at(places.labels(), std::to_string(start.size()) + " labels, one per trial",
+                 std::to_string(rec.stimulus.size()) + " labels");
     }
 }
 
@@ -131,9 +117,22 @@ const unit_spikes& recording::unit(const std::string& id) const {
                       listing(units, [](const unit_spikes& u) { return u.id; }));
 }
 
-void validate(const recording& rec) {
-    validate_units(rec);
-    validate_trials(rec);
+place recording_places::units() const { return {rec_.source, "/units"}; }
+place recording_places::unit(std::size_t u) const { return {rec_.source, "/units/" + rec_.units[u].id}; }
+place recording_places::spike(std::size_t u, std::size_t i) const {
+    return {rec_.source, indexed("/units/" + rec_.units[u].id + "/spike_times", i)};
+}
+place recording_places::trial_starts() const { return {rec_.source, "/trials/start_time"}; }
+place recording_places::trial_start(std::size_t k) const { return {rec_.source, indexed("/trials/start_time", k)}; }
+place recording_places::trial_stops() const { return {rec_.source, "/trials/stop_time"}; }
+place recording_places::trial_stop(std::size_t k) const { return {rec_.source, indexed("/trials/stop_time", k)}; }
+place recording_places::labels() const { return rec_.labels_place(); }
+
+void validate(const recording& rec) { validate(rec, recording_places(rec)); }
+
+void validate(const recording& rec, const recording_places& places) {
+    validate_units(rec, places);
+    validate_trials(rec, places);
 }
 
 std::vector<std::vector<seconds>> align_to_trials(const std::vector<seconds>& spikes, const recording& rec,
@@ -188,7 +187,9 @@ std::vector<std::size_t> select_trials(const recording& rec, const std::optional
     std::vector<std::size_t> chosen;
     if (stimulus && !rec.has_stimulus()) {
         throw usage_error("cannot select trials with stimulus " + quoted(*stimulus) + ": " + rec.source +
-                          " has no stimulus labels (no /trials/stimulus)");
+                          " has no stimulus labels" +
+                          (rec.labels_place().object.empty() ? "" : " (nothing at " + rec.labels_place().object + ")") +
+                          rec.origin.labels_hint);
     }
     for (std::size_t k = 0; k < rec.trial_count(); ++k) {
         if (allowed[k] && (!stimulus || rec.stimulus[k] == *stimulus)) chosen.push_back(k);

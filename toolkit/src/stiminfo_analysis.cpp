@@ -192,8 +192,10 @@ void refuse_repeats(const std::vector<std::string>& names, const std::string& op
 std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_request& q) {
     check_stiminfo_request(q);
     if (!rec.has_stimulus()) {
-        throw input_error(rec.source, "/trials/stimulus", "a stimulus label for every trial (stimulus information needs labelled conditions)",
-                          "no labels");
+        const place labels = rec.labels_place();
+        throw input_error(labels.file, labels.object,
+                          "a stimulus label for every trial (stimulus information needs labelled conditions)",
+                          "no labels" + rec.origin.labels_hint);
     }
     refuse_repeats(q.units, "--unit");
     refuse_repeats(q.stimuli, "--stimuli");

@@ -10,6 +10,22 @@
 
 namespace rastrum {
 
+/// A file and the object in it, as an input_error names them.
+struct place {
+    std::string file;
+    std::string object;
+};
+
+/// What a recording was read from, for provenance and messages. A file left empty is `source`.
+struct recording_origin {
+    std::string format;                          // "native", "nwb", "mat", "text"; empty when built in memory
+    std::string format_detail;                   // "an NWB 2.7.0 file", "a MATLAB 7.3 MAT-file", ...
+    place units{"", "/units"};                   // the units (and how their ids were chosen)
+    place trials{"", "/trials"};
+    place labels{"", "/trials/stimulus"};        // where the labels are, or where they were looked for
+    std::string labels_hint;                     // when there are none: how to give them, starting "; "
+};
+
 struct unit_spikes {
     std::string id;
     std::vector<seconds> spike_times;  // session clock, ascending (loaders sort and warn)
@@ -22,17 +38,45 @@ struct recording {
     std::vector<seconds> trial_stop;         // trial_stop[k] > trial_start[k]
     std::vector<std::string> stimulus;       // empty, or one label per trial (integers as decimal text)
     std::vector<std::string> warnings;       // what the loader repaired or noticed (sorted spikes, empty units)
+    recording_origin origin;
 
     std::size_t trial_count() const { return trial_start.size(); }
     bool has_stimulus() const { return !stimulus.empty(); }
+    /// Where the labels are (or would be), for messages: `origin.labels` in `source` unless it names a file.
+    place labels_place() const { return {origin.labels.file.empty() ? source : origin.labels.file, origin.labels.object}; }
     /// The unit with this id. Throws usage_error naming the ids that exist when there is none.
     const unit_spikes& unit(const std::string& id) const;
 };
 
+/// Where the parts of a recording sit in the file(s) it came from, so that validate() can name
+/// them in the source's own terms (an NWB dataset, a MATLAB variable, a CSV line). The default
+/// names the native layout's objects in `rec.source` ("/units/u3/spike_times[17]").
+class recording_places {
+public:
+    explicit recording_places(const recording& rec): rec_(rec) {}
+    virtual ~recording_places() = default;
+    recording_places(const recording_places&) = delete;
+    recording_places& operator=(const recording_places&) = delete;
+
+    virtual place units() const;                                   // the list of units
+    virtual place unit(std::size_t u) const;                        // the id of unit u
+    virtual place spike(std::size_t u, std::size_t i) const;        // spike i of unit u
+    virtual place trial_starts() const;
+    virtual place trial_start(std::size_t k) const;
+    virtual place trial_stops() const;
+    virtual place trial_stop(std::size_t k) const;
+    virtual place labels() const;
+
+protected:
+    const recording& rec_;
+};
+
 /// Checks the invariants above (finite times, stop > start, no overlap, labels sized like trials,
-/// at least one unit and one trial). Throws input_error naming `recording.source` and the offending
-/// object (for example "/trials/stop_time[4]"). Loaders call it; so may code that builds recordings.
+/// at least one unit and one trial). Throws input_error naming the offending object through
+/// `places` (by default the native layout's, for example "/trials/stop_time[4]" in
+/// `recording.source`). Loaders call it; so may code that builds recordings.
 void validate(const recording& rec);
+void validate(const recording& rec, const recording_places& places);
 
 /// Spike times of one unit relative to the start of each selected trial: result[i] holds the
 /// spikes t with start[k] <= t < stop[k] for k = trials[i], as t - start[k], ascending.

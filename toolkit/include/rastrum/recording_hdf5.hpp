@@ -8,6 +8,8 @@
 #include <rastrum/recording.hpp>
 
 #include <string>
+#include <utility>
+#include <vector>
 
 namespace rastrum {
 
@@ -17,8 +19,11 @@ namespace rastrum {
 recording read_recording_hdf5(const std::string& path);
 
 /// Writes `rec` in the native layout to `path` (string labels; integer-looking labels are still
-/// written as strings). The file appears complete or not at all: it is written to a temporary name
-/// beside `path` and renamed. Throws error when the file cannot be written.
-void write_recording_hdf5(const recording& rec, const std::string& path);
+/// written as strings), with each of `notes` as a text attribute of the root (where the recording
+/// came from, for a converted file; the reader ignores them). The file appears complete or not at
+/// all: it is written to a temporary name beside `path` and renamed. Throws input_error (naming
+/// `rec.source`) for a unit id or label the layout cannot hold, error when the file cannot be written.
+void write_recording_hdf5(const recording& rec, const std::string& path,
+                          const std::vector<std::pair<std::string, std::string>>& notes = {});
 
 }  // namespace rastrum

@@ -1,6 +1,7 @@
 #pragma once
 /// What a recording holds, before any analysis: units, trials, labels.
 #include <rastrum/recording.hpp>
+#include <rastrum/recording_source.hpp>
 
 #include <nlohmann/json.hpp>
 #include <string>
@@ -21,6 +22,8 @@ struct recording_overview {
     seconds shortest_trial = 0, longest_trial = 0, total_trial_time = 0;
     std::vector<std::pair<std::string, std::size_t>> labels;  // with trial counts
     std::vector<std::string> warnings;                         // the loader's
+    recording_origin origin;                                   // what was read from where
+    std::string source;
 };
 
 recording_overview survey(const recording& rec);
@@ -28,5 +31,9 @@ recording_overview survey(const recording& rec);
 nlohmann::ordered_json survey_json(const recording_overview& o);
 /// A readable report for a terminal.
 std::string survey_text(const recording_overview& o, const std::string& path);
+
+/// What the file offers (its tables and columns, or its variables), for choosing input options.
+nlohmann::ordered_json contents_json(const source_contents& c);
+std::string contents_text(const source_contents& c);
 
 }  // namespace rastrum

@@ -1,10 +1,11 @@
 #include "hdf5_read_helpers.hpp"
+#include "loader_steps.hpp"
 
-#include <cerrno>
+#include <algorithm>
+#include <cmath>
 #include <cstring>
-#include <filesystem>
-#include <fstream>
 #include <functional>
+#include <optional>
 #include <limits>
 
 namespace rastrum::hdf5 {
@@ -212,19 +213,19 @@ std::string describe_type(const H5::DataType& type) {
     }
 }
 
-source::source(std::string path): path_(std::move(path)) {
-    namespace fs = std::filesystem;
-    std::error_code ec;
-    const auto status = fs::status(path_, ec);
-    if (!fs::exists(status)) throw input_error(path_, "", "an existing HDF5 file", "no such file");
-    if (fs::is_directory(status)) throw input_error(path_, "", "an HDF5 file", "a directory");
-    if (!fs::is_regular_file(status)) throw input_error(path_, "", "an HDF5 file", "not a regular file");
-    if (!std::ifstream(path_, std::ios::binary)) {
-        throw input_error(path_, "", "a readable HDF5 file", std::string("a file that cannot be opened: ") +
-                                                                 std::strerror(errno));
+bool has_signature(const std::string& path) {
+    const error_capture capture;
+    try {
+        forget_library_message();
+        return H5::H5File::isHdf5(path);
+    } catch (const H5::Exception& e) {
+        throw input_error(path, "", "an HDF5 file", "an HDF5 error: " + library_message(e));
     }
-    const bool is_hdf5 = guard("", "an HDF5 file", [&] { return H5::H5File::isHdf5(path_); });
-    if (!is_hdf5) throw input_error(path_, "", "an HDF5 file", "a file without the HDF5 signature");
+}
+
+source::source(std::string path): path_(std::move(path)) {
+    require_readable_file(path_, "HDF5 file", "an");
+    if (!has_signature(path_)) throw input_error(path_, "", "an HDF5 file", "a file without the HDF5 signature");
     guard("", "an HDF5 file that the HDF5 library can open", [&] { file_.openFile(path_, H5F_ACC_RDONLY); });
     file_size_ = guard("", "an HDF5 file of known size", [&] { return file_.getFileSize(); });
 }
@@ -235,11 +236,20 @@ namespace {
 struct resolution {
     object_kind kind;
     std::string at;
+    std::string link;  // what a link that leads nowhere is, for messages; empty otherwise
 };
+
+// The target of the soft link at `path`, made printable and short.
+std::string soft_link_target(hid_t loc, const std::string& path, std::size_t size) {
+    std::string target(std::min<std::size_t>(size, 4096) + 1, '\0');
+    if (H5Lget_val(loc, path.c_str(), target.data(), target.size(), H5P_DEFAULT) < 0) return "?";
+    target.resize(std::strlen(target.c_str()));
+    return printable(target.substr(0, 200));
+}
 
 resolution resolve(H5::H5File& file, const std::string& file_path, const std::string& object) {
     if (object.empty() || object[0] != '/') throw internal_error("HDF5 path not absolute: " + object);
-    if (object == "/") return {object_kind::group, object};
+    if (object == "/") return {object_kind::group, object, ""};
     const hid_t loc = file.getId();
     std::size_t from = 1;
     while (true) {
@@ -250,9 +260,19 @@ resolution resolve(H5::H5File& file, const std::string& file_path, const std::st
         if (link < 0) {
             throw input_error(file_path, prefix, "a readable link", "an HDF5 error: " + captured_message());
         }
-        // A soft or external link may name nothing; that is as missing as no link.
-        if (link == 0 || H5Oexists_by_name(loc, prefix.c_str(), H5P_DEFAULT) <= 0) {
-            return {object_kind::missing, prefix};
+        if (link == 0) return {object_kind::missing, prefix, ""};
+        // An external link is not followed: the recording is this one file, and opening whatever a
+        // link names (a missing file, a device, a pipe that blocks) is not a loader's business.
+        H5L_info_t info{};
+        if (H5Lget_info(loc, prefix.c_str(), &info, H5P_DEFAULT) >= 0 && info.type == H5L_TYPE_EXTERNAL) {
+            return {object_kind::missing, prefix, "an external link to another file (rastrum reads one file and does not follow it)"};
+        }
+        // A soft link may name nothing, or loop back on itself (HDF5 stops after a fixed number of
+        // hops); either is as missing as no link, and the message says which link it was.
+        if (H5Oexists_by_name(loc, prefix.c_str(), H5P_DEFAULT) <= 0) {
+            const std::string target = info.type == H5L_TYPE_SOFT ? soft_link_target(loc, prefix, info.u.val_size) : "";
+            return {object_kind::missing, prefix,
+                    "a soft link to " + target + " that leads to no object (dangling, or a cycle of soft links)"};
         }
         H5O_type_t type = H5O_TYPE_UNKNOWN;
         try {
@@ -261,7 +281,7 @@ resolution resolve(H5::H5File& file, const std::string& file_path, const std::st
             throw input_error(file_path, prefix, "an intact, readable HDF5 object", "an HDF5 error: " + library_message(e));
         }
         const object_kind kind = kind_of(type);
-        if (slash == std::string::npos || kind != object_kind::group) return {kind, prefix};
+        if (slash == std::string::npos || kind != object_kind::group) return {kind, prefix, ""};
         from = slash + 1;
     }
 }
@@ -275,10 +295,9 @@ object_kind source::kind(const std::string& object) {
 namespace {
 void require_kind(const std::string& file, const std::string& object, const resolution& r, object_kind wanted,
                   const std::string& expected) {
-    if (r.at != object) {
-        throw input_error(file, r.at, "a group (on the way to " + object + ")", kind_name(r.kind));
-    }
-    if (r.kind != wanted) throw input_error(file, object, expected, kind_name(r.kind));
+    const std::string found = r.link.empty() ? kind_name(r.kind) : r.link;
+    if (r.at != object) throw input_error(file, r.at, "a group (on the way to " + object + ")", found);
+    if (r.kind != wanted) throw input_error(file, object, expected, found);
 }
 }  // namespace
 
@@ -313,8 +332,25 @@ std::vector<std::string> source::member_names(const std::string& group_path) {
     });
 }
 
-extent_1d source::checked_extent(const H5::DataSet& dataset, const std::string& object,
-                                 const std::string& expected) {
+namespace {
+std::string shape_text(const std::vector<hsize_t>& dims) {
+    std::string shape;
+    for (const hsize_t d: dims) shape += (shape.empty() ? "" : " x ") + std::to_string(d);
+    return "a " + std::to_string(dims.size()) + "-D dataset [" + shape + "]";
+}
+
+// The element count when `dims` has an accepted shape.
+std::optional<hsize_t> elements_in(const std::vector<hsize_t>& dims, shape accepted) {
+    if (dims.size() == 1) return dims[0];
+    if (accepted == shape::matlab_vector && dims.size() == 2 && (dims[0] <= 1 || dims[1] <= 1)) {
+        return dims[0] * dims[1];  // each at most max_elements, checked before
+    }
+    return std::nullopt;
+}
+}  // namespace
+
+std::vector<std::uint64_t> source::checked_dimensions(const H5::DataSet& dataset, const std::string& object,
+                                                      const std::string& expected) {
     const H5::DataSpace space = dataset.getSpace();
     switch (space.getSimpleExtentType()) {
     case H5S_NULL: throw input_error(path_, object, expected, "a dataset with a null dataspace (no shape)");
@@ -322,18 +358,16 @@ extent_1d source::checked_extent(const H5::DataSet& dataset, const std::string& 
     default: break;
     }
     const int rank = space.getSimpleExtentNdims();
-    if (rank != 1) {
-        std::vector<hsize_t> dims(static_cast<std::size_t>(rank));
-        space.getSimpleExtentDims(dims.data());
-        std::string shape;
-        for (const hsize_t d: dims) shape += (shape.empty() ? "" : " x ") + std::to_string(d);
-        throw input_error(path_, object, expected, "a " + std::to_string(rank) + "-D dataset [" + shape + "]");
-    }
-    hsize_t n = 0;
-    space.getSimpleExtentDims(&n);
-    if (n > max_elements) {
-        throw input_error(path_, object, expected + " of at most 2^31 elements",
-                          "a declared size of " + std::to_string(n) + " elements");
+    std::vector<hsize_t> dims(static_cast<std::size_t>(std::max(rank, 0)));
+    space.getSimpleExtentDims(dims.data());
+    hsize_t n = 1;
+    for (const hsize_t d: dims) {
+        if (d > max_elements || n * d > max_elements) {
+            throw input_error(path_, object, expected + " of at most 2^31 elements",
+                              "a declared size of " + std::to_string(dims.size() == 1 ? d : n * d) + " elements" +
+                                  (dims.size() == 1 ? "" : " (" + shape_text(dims) + ")"));
+        }
+        n *= d;
     }
     // Compare the declared size with the file before anything is allocated: a corrupt or hostile
     // header can claim any size, and unwritten chunks read back as fill values.
@@ -348,16 +382,32 @@ extent_1d source::checked_extent(const H5::DataSet& dataset, const std::string& 
                           "a declared size of " + std::to_string(n) + " elements of " + bytes_text(stored_each) +
                               " (" + bytes_text(n * stored_each) + ")");
     }
-    return extent_1d{static_cast<std::size_t>(n)};
+    return std::vector<std::uint64_t>(dims.begin(), dims.end());
 }
 
-std::vector<double> source::read_float64(const std::string& object) {
-    const std::string expected = "a 1-D float64 dataset (any float type)";
+extent_1d source::checked_extent(const H5::DataSet& dataset, const std::string& object, const std::string& expected,
+                                 shape accepted) {
+    const std::vector<std::uint64_t> stored = checked_dimensions(dataset, object, expected);
+    const std::vector<hsize_t> dims(stored.begin(), stored.end());
+    const std::optional<hsize_t> n = elements_in(dims, accepted);
+    if (!n) throw input_error(path_, object, expected, shape_text(dims));
+    return extent_1d{static_cast<std::size_t>(*n)};
+}
+
+std::vector<std::uint64_t> source::dimensions(const std::string& object) {
+    const std::string expected = "a dataset";
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] { return checked_dimensions(ds, object, expected); });
+}
+
+std::vector<double> source::read_float64(const std::string& object, shape accepted) {
+    const std::string expected = accepted == shape::one_dimensional ? "a 1-D float64 dataset (any float type)"
+                                                                      : "a vector of floats";
     const H5::DataSet ds = dataset(object, expected);
     return guard(object, expected, [&] {
         const H5::DataType type = ds.getDataType();
         if (type.getClass() != H5T_FLOAT) throw input_error(path_, object, expected, of_type(type));
-        std::vector<double> values(checked_extent(ds, object, expected).elements);
+        std::vector<double> values(checked_extent(ds, object, expected, accepted).elements);
         if (!values.empty()) ds.read(values.data(), H5::PredType::NATIVE_DOUBLE);
         return values;
     });
@@ -396,19 +446,36 @@ void require_integer_width(const H5::DataType& type, const std::string& file, co
 }
 }  // namespace
 
-std::vector<std::int64_t> source::read_int64(const std::string& object) {
-    const std::string expected = "a 1-D integer dataset";
+std::vector<std::int64_t> source::read_int64(const std::string& object, shape accepted) {
+    const std::string expected = accepted == shape::one_dimensional ? "a 1-D integer dataset" : "a vector of integers";
     const H5::DataSet ds = dataset(object, expected);
     return guard(object, expected, [&] {
         const H5::DataType type = ds.getDataType();
         if (type.getClass() != H5T_INTEGER) throw input_error(path_, object, expected, of_type(type));
         require_integer_width(type, path_, object, expected);
-        return read_integers(ds, checked_extent(ds, object, expected).elements, path_, object);
+        return read_integers(ds, checked_extent(ds, object, expected, accepted).elements, path_, object);
     });
 }
 
 std::vector<std::string> source::read_string_elements(const H5::DataSet& ds, const H5::StrType& type,
                                                       std::size_t elements, const std::string& object) {
+    // Variable-length strings live in the global heap, and nothing stops a crafted file from
+    // pointing many elements at one large heap object: their total is asked of the library (which
+    // sums the lengths without reading the strings) and held against the file before the read.
+    if (elements > 0 && H5Tis_variable_str(type.getId()) > 0) {
+        H5::StrType memory(H5::PredType::C_S1, H5T_VARIABLE);
+        memory.setCset(H5Tget_cset(type.getId()));  // HDF5 converts no character set into another
+        const H5::DataSpace space = ds.getSpace();
+        hsize_t bytes = 0;
+        forget_library_message();
+        if (H5Dvlen_get_buf_size(ds.getId(), memory.getId(), space.getId(), &bytes) < 0) {
+            throw input_error(path_, object, "readable variable-length strings", "an HDF5 error: " + captured_message());
+        }
+        if (bytes > file_size_) {
+            throw input_error(path_, object, "strings that fit in the file (" + bytes_text(file_size_) + ")",
+                              "strings of " + bytes_text(bytes) + " in all");
+        }
+    }
     std::vector<std::string> values = decode_strings(
         type, elements, [&](void* buffer, const H5::DataType& memory) { ds.read(buffer, memory); });
     for (std::size_t i = 0; i < values.size(); ++i) {
@@ -432,20 +499,36 @@ std::vector<std::string> source::read_strings(const std::string& object) {
     });
 }
 
-std::vector<std::string> source::read_labels(const std::string& object) {
-    const std::string expected = "a 1-D dataset of integer or string labels";
+std::vector<std::string> source::read_labels(const std::string& object, label_types accepted, shape accepted_shape) {
+    const bool floats = accepted == label_types::numbers_and_text;
+    const std::string expected = std::string(accepted_shape == shape::one_dimensional ? "a 1-D dataset" : "a vector") +
+                                 (floats ? " of numbers or strings" : " of integer or string labels");
     const H5::DataSet ds = dataset(object, expected);
     return guard(object, expected, [&] {
         const H5::DataType type = ds.getDataType();
-        if (type.getClass() != H5T_INTEGER && type.getClass() != H5T_STRING) {
+        const H5T_class_t kind = type.getClass();
+        const bool enumeration = floats && kind == H5T_ENUM;
+        if (kind != H5T_INTEGER && kind != H5T_STRING && !(floats && kind == H5T_FLOAT) && !enumeration) {
             throw input_error(path_, object, expected, of_type(type));
         }
-        const std::size_t n = checked_extent(ds, object, expected).elements;
-        if (type.getClass() == H5T_STRING) return read_string_elements(ds, ds.getStrType(), n, object);
-        require_integer_width(type, path_, object, expected);
+        const std::size_t n = checked_extent(ds, object, expected, accepted_shape).elements;
+        if (kind == H5T_STRING) return read_string_elements(ds, ds.getStrType(), n, object);
+        if (enumeration) return read_enum_names(ds, n, object);
         std::vector<std::string> labels;
         labels.reserve(n);
         if (n == 0) return labels;
+        if (kind == H5T_FLOAT) {
+            std::vector<double> values(n);
+            ds.read(values.data(), H5::PredType::NATIVE_DOUBLE);
+            for (std::size_t i = 0; i < n; ++i) {
+                if (!std::isfinite(values[i])) {
+                    throw input_error(path_, element_path(object, i), "a finite number", exact_number(values[i]));
+                }
+                labels.push_back(exact_number(values[i]));
+            }
+            return labels;
+        }
+        require_integer_width(type, path_, object, expected);
         // Labels are text, so unsigned 64-bit values keep their exact decimal form.
         if (is_wide_unsigned(type)) {
             std::vector<std::uint64_t> raw(n);
@@ -455,6 +538,58 @@ std::vector<std::string> source::read_labels(const std::string& object) {
             for (const std::int64_t v: read_integers(ds, n, path_, object)) labels.push_back(std::to_string(v));
         }
         return labels;
+    });
+}
+
+std::vector<std::string> source::read_enum_names(const H5::DataSet& ds, std::size_t n, const std::string& object) {
+    // Read in the enumeration's own (native-order) type and named member by member: HDF5 converts
+    // enumerations only to enumerations, and the names are what the writer meant (TRUE, FALSE).
+    const hid_t native = H5Tget_native_type(ds.getDataType().getId(), H5T_DIR_ASCEND);
+    if (native < 0) throw input_error(path_, object, "a readable enumeration", "an HDF5 error: " + captured_message());
+    const H5::EnumType type(native);
+    H5Tclose(native);
+    const std::size_t width = type.getSize();
+    std::vector<unsigned char> raw(n * width);
+    if (n > 0) ds.read(raw.data(), type);
+    std::vector<std::string> labels;
+    labels.reserve(n);
+    for (std::size_t i = 0; i < n; ++i) {
+        char name[256];
+        if (H5Tenum_nameof(type.getId(), raw.data() + i * width, name, sizeof name) < 0) {
+            throw input_error(path_, element_path(object, i), "a value that is a member of its enumeration",
+                              "a value without a name");
+        }
+        labels.emplace_back(name);
+    }
+    return labels;
+}
+
+std::vector<std::string> source::read_reference_paths(const std::string& object, shape accepted) {
+    const std::string expected = "a dataset of object references";
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] {
+        const H5::DataType type = ds.getDataType();
+        if (type.getClass() != H5T_REFERENCE || !(type == H5::PredType::STD_REF_OBJ)) {
+            throw input_error(path_, object, expected, of_type(type));
+        }
+        const std::size_t n = checked_extent(ds, object, expected, accepted).elements;
+        std::vector<hobj_ref_t> refs(n);
+        if (n > 0) ds.read(refs.data(), H5::PredType::STD_REF_OBJ);
+        std::vector<std::string> paths;
+        paths.reserve(n);
+        for (std::size_t i = 0; i < n; ++i) {
+            forget_library_message();
+            const ssize_t length = H5Rget_name(file_.getId(), H5R_OBJECT, &refs[i], nullptr, 0);
+            if (length <= 0) {
+                throw input_error(path_, element_path(object, i), "a reference to a named object in this file",
+                                  length < 0 ? "an HDF5 error: " + captured_message() : "an object without a name");
+            }
+            std::string name(static_cast<std::size_t>(length) + 1, '\0');
+            H5Rget_name(file_.getId(), H5R_OBJECT, &refs[i], name.data(), name.size());
+            name.resize(static_cast<std::size_t>(length));
+            paths.push_back(std::move(name));
+        }
+        return paths;
     });
 }
 

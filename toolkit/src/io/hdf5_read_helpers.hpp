@@ -48,12 +48,28 @@ std::size_t invalid_utf8_offset(const std::string& text);
 /// For messages: "64-bit float", "32-bit signed integer", "variable-length string", "compound", ...
 std::string describe_type(const H5::DataType& type);
 
+/// Whether the file carries the HDF5 signature (at offset 0 or after a user block of 512, 1024, ...
+/// bytes). Throws input_error when the library cannot tell.
+bool has_signature(const std::string& path);
+
 /// What an HDF5 path names.
 enum class object_kind { missing, group, dataset, other };
 
-/// A dataset's shape, checked to be one-dimensional.
+/// A dataset's shape, checked to be one of the shapes a reader accepts.
 struct extent_1d {
     std::size_t elements = 0;
+};
+
+/// The shapes a reader accepts for a list of values.
+enum class shape {
+    one_dimensional,  // [n]
+    matlab_vector,    // MATLAB's 1xn or nx1, stored as HDF5 [n, 1] or [1, n] (column-major); [n] too
+};
+
+/// What a label dataset may hold.
+enum class label_types {
+    integers_and_text,  // the native layout: a float label is more likely a mistake than a condition
+    numbers_and_text,   // NWB and MAT-files, where conditions are often floats (a contrast, an angle)
 };
 
 /// Largest element count any helper reads: beyond this a declared size is taken as corrupt.
@@ -96,14 +112,22 @@ public:
     /// Names of the links in a group, in HDF5's name order (byte order), each checked to be UTF-8.
     std::vector<std::string> member_names(const std::string& group_path);
 
-    /// A one-dimensional dataset of any float class, converted to double.
-    std::vector<double> read_float64(const std::string& object);
-    /// A one-dimensional dataset of any integer class that fits in int64.
-    std::vector<std::int64_t> read_int64(const std::string& object);
+    /// A dataset of any float class, converted to double.
+    std::vector<double> read_float64(const std::string& object, shape accepted = shape::one_dimensional);
+    /// A dataset of any integer class that fits in int64.
+    std::vector<std::int64_t> read_int64(const std::string& object, shape accepted = shape::one_dimensional);
     /// A one-dimensional dataset of strings, variable- or fixed-length, each checked to be UTF-8.
     std::vector<std::string> read_strings(const std::string& object);
-    /// Labels: a one-dimensional integer dataset (any width, as decimal text) or string dataset.
-    std::vector<std::string> read_labels(const std::string& object);
+    /// Labels: integers (any width, as decimal text), strings, and with numbers_and_text also
+    /// finite floats (as the shortest decimal that reads back as the same value: 0.25, 3) and
+    /// enumerations (as their members' names: NWB's booleans read FALSE and TRUE).
+    std::vector<std::string> read_labels(const std::string& object, label_types accepted = label_types::integers_and_text,
+                                         shape accepted_shape = shape::one_dimensional);
+    /// Object references (H5T_STD_REF_OBJ), as the paths of the objects they point to.
+    std::vector<std::string> read_reference_paths(const std::string& object, shape accepted = shape::one_dimensional);
+    /// The HDF5 dimensions of a dataset, as stored (C order), for readers that check shapes
+    /// themselves; every dimension checked as checked_extent does.
+    std::vector<std::uint64_t> dimensions(const std::string& object);
 
     bool has_attribute(const std::string& object, const std::string& name);
     /// A scalar (or one-element) string attribute.
@@ -112,8 +136,14 @@ public:
     std::int64_t read_int64_attribute(const std::string& object, const std::string& name);
 
 private:
-    // Checks rank 1 and that `elements` x `stored_bytes_per_element` could be in this file.
-    extent_1d checked_extent(const H5::DataSet& dataset, const std::string& object, const std::string& expected);
+    // Checks the shape and that `elements` x `stored_bytes_per_element` could be in this file.
+    extent_1d checked_extent(const H5::DataSet& dataset, const std::string& object, const std::string& expected,
+                             shape accepted = shape::one_dimensional);
+    // Checks that the declared dimensions could be in this file (at most 2^31 elements, and no
+    // more bytes than the file holds, or 1032 times that when filtered).
+    std::vector<std::uint64_t> checked_dimensions(const H5::DataSet& dataset, const std::string& object,
+                                                  const std::string& expected);
+    std::vector<std::string> read_enum_names(const H5::DataSet& dataset, std::size_t elements, const std::string& object);
     std::vector<std::string> read_string_elements(const H5::DataSet& dataset, const H5::StrType& type,
                                                   std::size_t elements, const std::string& object);
 

@@ -1,11 +1,10 @@
 #include "hdf5_read_helpers.hpp"
+#include "loader_steps.hpp"
 
 #include <rastrum/errors.hpp>
 #include <rastrum/recording_hdf5.hpp>
 
 #include <algorithm>
-#include <cmath>
-#include <sstream>
 
 namespace rastrum {
 
@@ -13,54 +12,6 @@ namespace {
 
 constexpr const char* layout_name = "spike-recording";
 constexpr std::int64_t layout_version = 1;
-
-std::string number(double x) {
-    std::ostringstream out;
-    out.precision(17);
-    out << x;
-    return out.str();
-}
-
-bool is_digit(char c) { return c >= '0' && c <= '9'; }
-
-// Natural order: runs of decimal digits compare by their value, everything else byte by byte, so
-// "u2" < "u10" and "tetrode2/ch3" sorts as a person would list it. Names equal under that rule
-// ("u01", "u1") fall back to byte order, which keeps the order total and deterministic.
-bool natural_less(const std::string& a, const std::string& b) {
-    std::size_t i = 0;
-    std::size_t j = 0;
-    while (i < a.size() && j < b.size()) {
-        if (is_digit(a[i]) && is_digit(b[j])) {
-            std::size_t i_end = i;
-            std::size_t j_end = j;
-            while (i_end < a.size() && is_digit(a[i_end])) ++i_end;
-            while (j_end < b.size() && is_digit(b[j_end])) ++j_end;
-            // Compare without leading zeros: the longer run is the larger number, equal lengths
-            // compare digit by digit. No conversion, so runs of any length work.
-            std::size_t i_lead = i;
-            std::size_t j_lead = j;
-            while (i_lead + 1 < i_end && a[i_lead] == '0') ++i_lead;
-            while (j_lead + 1 < j_end && b[j_lead] == '0') ++j_lead;
-            const std::size_t i_len = i_end - i_lead;
-            const std::size_t j_len = j_end - j_lead;
-            if (i_len != j_len) return i_len < j_len;
-            const int digits = a.compare(i_lead, i_len, b, j_lead, j_len);
-            if (digits != 0) return digits < 0;
-            i = i_end;
-            j = j_end;
-        } else {
-            const auto ca = static_cast<unsigned char>(a[i]);
-            const auto cb = static_cast<unsigned char>(b[j]);
-            if (ca != cb) return ca < cb;
-            ++i;
-            ++j;
-        }
-    }
-    const bool a_done = i == a.size();
-    const bool b_done = j == b.size();
-    if (a_done != b_done) return a_done;
-    return a < b;
-}
 
 void check_layout_attributes(hdf5::source& src) {
     if (src.has_attribute("/", "layout")) {
@@ -87,20 +38,8 @@ unit_spikes read_unit(hdf5::source& src, const std::string& id, std::vector<std:
     src.group(group, "a unit group holding spike_times (float64 [n])");
     const std::string object = group + "/spike_times";
     unit_spikes unit{id, src.read_float64(object)};
-    // Checked here rather than left to validate(): the index must be the one in the file, before
-    // sorting moves elements, and sorting NaN would be undefined.
-    for (std::size_t i = 0; i < unit.spike_times.size(); ++i) {
-        if (!std::isfinite(unit.spike_times[i])) {
-            throw input_error(src.path(), hdf5::element_path(object, i), "a finite time in seconds",
-                              number(unit.spike_times[i]));
-        }
-    }
-    if (unit.spike_times.empty()) {
-        warnings.push_back("unit " + id + ": no spikes; kept, it carries no information");
-    } else if (!std::is_sorted(unit.spike_times.begin(), unit.spike_times.end())) {
-        std::sort(unit.spike_times.begin(), unit.spike_times.end());
-        warnings.push_back("unit " + id + ": spike times were not sorted; sorted them");
-    }
+    settle_spike_times(unit.spike_times, id, [&](std::size_t i) { return place{src.path(), hdf5::element_path(object, i)}; },
+                       warnings);
     return unit;
 }
 
@@ -110,6 +49,8 @@ recording read_recording_hdf5(const std::string& path) {
     hdf5::source src(path);
     recording rec;
     rec.source = path;
+    rec.origin.format = "native";
+    rec.origin.format_detail = "an HDF5 file in the native layout";
 
     check_layout_attributes(src);
 

@@ -4,6 +4,7 @@
 #include <rastrum/errors.hpp>
 #include <rastrum/recording_hdf5.hpp>
 
+#include <algorithm>
 #include <cstdint>
 
 namespace rastrum {
@@ -12,23 +13,21 @@ namespace {
 
 // Names and labels are stored as UTF-8 and read back through the same checks the reader applies,
 // so anything the reader would refuse is refused here, before a file exists.
-void check_writable(const recording& rec, const std::string& path) {
+void check_writable(const recording& rec) {
     for (const auto& u: rec.units) {
         const bool bad_name = u.id == "." || u.id.find('/') != std::string::npos ||
                               u.id.find('\0') != std::string::npos;
-        if (bad_name) {
-            throw error("cannot write " + path + ": unit id \"" + u.id +
-                        "\" cannot be an HDF5 group name (no '/', no NUL, not \".\")");
-        }
-        if (hdf5::invalid_utf8_offset(u.id) != std::string::npos) {
-            throw error("cannot write " + path + ": unit id is not UTF-8");
+        if (bad_name || hdf5::invalid_utf8_offset(u.id) != std::string::npos) {
+            throw input_error(rec.source, "unit \"" + u.id + "\"",
+                              "unit ids that can be HDF5 group names in the native layout (UTF-8, no '/', no NUL, not \".\")",
+                              "this id");
         }
     }
     for (std::size_t k = 0; k < rec.stimulus.size(); ++k) {
         const std::string& s = rec.stimulus[k];
         if (s.find('\0') != std::string::npos || hdf5::invalid_utf8_offset(s) != std::string::npos) {
-            throw error("cannot write " + path + ": stimulus label of trial " + std::to_string(k) +
-                        " is not UTF-8 text without NUL bytes");
+            throw input_error(rec.source, "label of trial " + std::to_string(k), "UTF-8 text without NUL bytes",
+                              "other bytes");
         }
     }
 }
@@ -63,19 +62,26 @@ void write_labels(const H5::Group& parent, const std::string& name, const std::v
     if (n > 0) ds.write(pointers.data(), type);
 }
 
-// Every object opened here is closed on return, so the caller's close() really closes the file.
-void write_contents(const H5::H5File& file, const recording& rec) {
-    const H5::DataSpace scalar(H5S_SCALAR);
-    // Fixed-length, so the value sits in the checksummed object header; a variable-length string
-    // would live in the global heap, which has no checksum.
-    const std::string layout = "spike-recording";
-    H5::StrType text(H5::PredType::C_S1, layout.size());
+// Fixed-length, so the value sits in the checksummed object header; a variable-length string
+// would live in the global heap, which has no checksum.
+void text_attribute(const H5::H5File& file, const std::string& name, const std::string& value) {
+    H5::StrType text(H5::PredType::C_S1, std::max<std::size_t>(value.size(), 1));
     text.setCset(H5T_CSET_UTF8);
     text.setStrpad(H5T_STR_NULLPAD);
-    file.createAttribute("layout", text, scalar).write(text, layout.data());
+    std::string stored = value;
+    stored.resize(text.getSize(), '\0');
+    file.createAttribute(name, text, H5::DataSpace(H5S_SCALAR)).write(text, stored.data());
+}
+
+// Every object opened here is closed on return, so the caller's close() really closes the file.
+void write_contents(const H5::H5File& file, const recording& rec,
+                    const std::vector<std::pair<std::string, std::string>>& notes) {
+    const H5::DataSpace scalar(H5S_SCALAR);
+    text_attribute(file, "layout", "spike-recording");
     const std::int64_t version = 1;
     file.createAttribute("layout_version", H5::PredType::STD_I64LE, scalar)
         .write(H5::PredType::NATIVE_INT64, &version);
+    for (const auto& [name, value]: notes) text_attribute(file, name, value);
 
     const H5::LinkCreatPropList names = utf8_names();
     const H5::Group units = file.createGroup("units", names);
@@ -89,10 +95,11 @@ void write_contents(const H5::H5File& file, const recording& rec) {
 
 }  // namespace
 
-void write_recording_hdf5(const recording& rec, const std::string& path) {
+void write_recording_hdf5(const recording& rec, const std::string& path,
+                          const std::vector<std::pair<std::string, std::string>>& notes) {
     // A file that the reader would refuse is not worth writing.
     validate(rec);
-    check_writable(rec, path);
+    check_writable(rec);
     const hdf5::error_capture capture;
     atomic_file out(path);
     try {
@@ -102,7 +109,7 @@ void write_recording_hdf5(const recording& rec, const std::string& path) {
         H5::FileAccPropList access;
         access.setLibverBounds(H5F_LIBVER_V18, H5F_LIBVER_LATEST);
         H5::H5File file(out.temporary_path(), H5F_ACC_TRUNC, H5::FileCreatPropList::DEFAULT, access);
-        write_contents(file, rec);
+        write_contents(file, rec, notes);
         file.close();
     } catch (const H5::Exception& e) {
         throw error("cannot write " + path + ": " + hdf5::library_message(e));

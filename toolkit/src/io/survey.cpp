@@ -28,6 +28,8 @@ recording_overview survey(const recording& rec) {
     }
     o.labels = stimulus_labels(rec);
     o.warnings = rec.warnings;
+    o.origin = rec.origin;
+    o.source = rec.source;
     return o;
 }
 
@@ -55,7 +57,12 @@ nlohmann::ordered_json survey_json(const recording_overview& o) {
 std::string survey_text(const recording_overview& o, const std::string& path) {
     std::ostringstream s;
     char line[256];
-    s << path << "\n";
+    s << path << (o.origin.format_detail.empty() ? "" : ": " + o.origin.format_detail) << "\n";
+    if (!o.origin.format.empty()) {
+        auto where = [&](const place& p) { return p.file.empty() || p.file == o.source ? p.object : p.file + ": " + p.object; };
+        s << "read: units from " << where(o.origin.units) << "; trials from " << where(o.origin.trials) << "; labels "
+          << (o.labels.empty() ? "none" : "from " + where(o.origin.labels)) << "\n";
+    }
     if (o.shortest_trial == o.longest_trial) {
         std::snprintf(line, sizeof line, "trials: %zu, all %.4g s long (%.4g s in all)\n", o.trials, o.shortest_trial,
                       o.total_trial_time);
@@ -80,6 +87,41 @@ std::string survey_text(const recording_overview& o, const std::string& path) {
         s << line;
     }
     for (const auto& w: o.warnings) s << "warning: " << w << "\n";
+    return s.str();
+}
+
+nlohmann::ordered_json contents_json(const source_contents& c) {
+    nlohmann::ordered_json j;
+    j["format"] = format_name(c.format);
+    j["detail"] = c.detail;
+    j["groups"] = nlohmann::ordered_json::array();
+    for (const auto& g: c.groups) {
+        nlohmann::ordered_json items = nlohmann::ordered_json::array();
+        for (const auto& [name, what]: g.items) items.push_back({{"name", name}, {"what", what}});
+        j["groups"].push_back({{"name", g.name}, {"kind", g.kind}, {"items", items}});
+    }
+    return j;
+}
+
+std::string contents_text(const source_contents& c) {
+    std::ostringstream s;
+    if (c.groups.empty()) return s.str();
+    switch (c.format) {
+    case recording_format::nwb: s << "\nin the file (choose with --intervals, --stimulus-column, --unit-column):\n"; break;
+    case recording_format::mat:
+        s << "\nin the file (name them with --mat-spikes, --mat-trial-start, --mat-trial-stop, --mat-stimulus, "
+             "--mat-unit-ids):\n";
+        break;
+    default: s << "\ncolumns (--stimulus-column picks the label column of the trials):\n"; break;
+    }
+    for (const auto& g: c.groups) {
+        s << "  " << g.name << (g.kind.empty() ? "" : " (" + g.kind + ")") << "\n";
+        for (const auto& [name, what]: g.items) {
+            char line[512];
+            std::snprintf(line, sizeof line, "      %-24s %s\n", name.c_str(), what.c_str());
+            s << line;
+        }
+    }
     return s.str();
 }
 
