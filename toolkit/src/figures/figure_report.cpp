@@ -1,7 +1,7 @@
 #include <rastrum/errors.hpp>
 #include <rastrum/figure_report.hpp>
 #include <rastrum/output_folder.hpp>
-#include <rastrum/recording_hdf5.hpp>
+#include <rastrum/recording_source.hpp>
 #include <rastrum/report_page.hpp>
 #include <rastrum/sha256.hpp>
 
@@ -83,7 +83,8 @@ figure_report make_figure_report(const figure_report_request& request) {
         contents.results.push_back(section);
     }
     if (request.recording) {
-        const recording rec = read_recording_hdf5(*request.recording);
+        // Any format found from the content alone (native, NWB); MAT and text need input options figures lacks.
+        const recording rec = read_recording(recording_source{*request.recording, {}, {}, {}, {}, {}});
         contents.recording_path = *request.recording;
         const std::string sha = file_sha256(*request.recording);
         // Rasters are drawn for the units of the results computed from this recording; results of
