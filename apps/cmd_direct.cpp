@@ -67,17 +67,11 @@ int run_direct(int argc, char** argv) {
     const recording_source source = source_of(file, input);
     const output_choice out = choose_outputs(shared, vm, source_files(source));
     return analyse_and_write(argc, argv, source, request.threads, out, [&](const recording& rec, provenance& origin) {
-        std::vector<direct_record> records;
-        {
-            progress_display shown(parse_progress_style(out.progress), out.quiet, "direct");
-            request.progress = shown.callback();
-            records = run_direct(rec, request);
-        }
+        const auto records = with_progress(parse_progress_style(out.progress), out.quiet, "direct", request.progress,
+                                           [&] { return run_direct(rec, request); });
         origin.finished_utc = utc_now();
-        const auto result = direct_json(records, request, origin);
-        const auto curves = direct_curves(records);
-        return rendered_results{result.dump(2) + "\n", direct_csv(records), direct_table(records, request),
-                                curves_csv(curves, "direct"), h5_writer(result, curves), provenance_of(result)};
+        return render_results(direct_json(records, request, origin), direct_curves(records), "direct", direct_csv(records),
+                              direct_table(records, request));
     });
 }
 

@@ -101,17 +101,11 @@ int run_stiminfo(int argc, char** argv) {
     const recording_source source = source_of(file, input);
     const output_choice out = choose_outputs(shared, vm, source_files(source));
     return analyse_and_write(argc, argv, source, request.threads, out, [&](const recording& rec, provenance& origin) {
-        std::vector<stiminfo_record> records;
-        {
-            progress_display shown(parse_progress_style(out.progress), out.quiet, "stiminfo");
-            request.progress = shown.callback();
-            records = run_stiminfo(rec, request);
-        }
+        const auto records = with_progress(parse_progress_style(out.progress), out.quiet, "stiminfo", request.progress,
+                                           [&] { return run_stiminfo(rec, request); });
         origin.finished_utc = utc_now();
-        const auto result = stiminfo_json(records, request, origin);
-        const auto curves = stiminfo_curves(records, request);
-        return rendered_results{result.dump(2) + "\n", stiminfo_csv(records, request), stiminfo_table(records, request),
-                                curves_csv(curves, "stiminfo"), h5_writer(result, curves), provenance_of(result)};
+        return render_results(stiminfo_json(records, request, origin), stiminfo_curves(records, request), "stiminfo",
+                              stiminfo_csv(records, request), stiminfo_table(records, request));
     });
 }
 

@@ -281,19 +281,25 @@ output_choice choose_outputs(const shared_options& shared, const po::variables_m
     return out;
 }
 
-std::string provenance_of(const nlohmann::ordered_json& result) {
-    nlohmann::ordered_json head;
+rendered_results render_results(nlohmann::ordered_json result, std::vector<curve_series> curves,
+                                const std::string& analysis, std::string csv, std::string table) {
+    rendered_results out;
+    nlohmann::ordered_json head;  // the provenance: every key but the records
     for (const auto& [key, value]: result.items()) {
-        if (key != "records" && key != "curves") head[key] = value;
+        if (key != "records") head[key] = value;
     }
-    return head.dump();
-}
-
-std::function<void(const std::string&)> h5_writer(nlohmann::ordered_json result, std::vector<curve_series> curves) {
-    result.erase("curves");
-    return [result = std::move(result), curves = std::move(curves)](const std::string& path) {
+    out.provenance_json = head.dump();
+    out.csv = std::move(csv);
+    out.table = std::move(table);
+    out.curves_csv = curves_csv(curves, analysis);
+    nlohmann::ordered_json whole = result;
+    whole["curves"] = curves_json(curves);
+    out.json = whole.dump(2) + "\n";
+    // The HDF5 file keeps the result without its curves, which get datasets of their own.
+    out.write_h5 = [result = std::move(result), curves = std::move(curves)](const std::string& path) {
         write_results_hdf5(path, result, curves);
     };
+    return out;
 }
 
 recording read_input(const recording_source& source, bool quiet, provenance& origin) {

@@ -130,12 +130,10 @@ struct rendered_results {
     std::string provenance_json;
 };
 
-/// The provenance part of a result (every key but records and curves), as compact JSON.
-std::string provenance_of(const nlohmann::ordered_json& result);
-
-/// Writes `result` (without its curves, which get datasets of their own) and `curves` as an HDF5
-/// results file, when called with the path.
-std::function<void(const std::string&)> h5_writer(nlohmann::ordered_json result, std::vector<curve_series> curves);
+/// Every output of an analysis from its result JSON (without curves), its curves (computed once, for
+/// the JSON's `curves`, the curves CSV and the HDF5 results file), its records CSV and its table.
+rendered_results render_results(nlohmann::ordered_json result, std::vector<curve_series> curves,
+                                const std::string& analysis, std::string csv, std::string table);
 
 /// Reads the recording, prints the loader's warnings (unless quiet) and fills the input part of
 /// `origin`: path, sha256 of every file read, and what was read from where.

@@ -33,4 +33,15 @@ private:
     bool bar_shown_ = false;
 };
 
+/// Runs `work` with a display of `style` (none when quiet) plugged into `slot`, the request's
+/// progress callback, and finishes the display's line before returning what `work` returned.
+template <class Work>
+auto with_progress(progress_style style, bool quiet, const std::string& what, progress_callback& slot, Work work) {
+    progress_display shown(style, quiet, what);
+    slot = shown.callback();
+    auto result = work();
+    slot = {};
+    return result;
+}
+
 }  // namespace rastrum::app

@@ -148,15 +148,18 @@ void trial_fraction_curve(const labelled_responses& t, const stiminfo_request& q
     const auto members = trials_by_condition(t);
     random_stream rng(derive_seed(settings.seed, {0xf4acULL}));
     for (double f: r.trial_fractions) {
+        if (f == 1) {  // all trials: the estimates already made
+            for (info_estimator e: q.estimators) r.info_by_fraction[e].push_back(r.info_bits.at(e));
+            continue;
+        }
         std::map<info_estimator, double> sum;
-        const unsigned repeats = f < 1 ? q.trial_fraction_repeats : 1;
-        for (unsigned k = 0; k < repeats; ++k) {
+        for (unsigned k = 0; k < q.trial_fraction_repeats; ++k) {
             labelled_responses part;
             part.conditions = t.conditions;
             part.alphabet = t.alphabet;
             for (const auto& m: members) {
                 std::vector<std::size_t> order = m;
-                if (f < 1) shuffle(order, rng);
+                shuffle(order, rng);
                 const auto keep = std::max<std::size_t>(std::min<std::size_t>(2, m.size()),
                                                         static_cast<std::size_t>(std::lround(f * static_cast<double>(m.size()))));
                 for (std::size_t i = 0; i < keep; ++i) {
@@ -164,11 +167,9 @@ void trial_fraction_curve(const labelled_responses& t, const stiminfo_request& q
                     part.response.push_back(t.response[order[i]]);
                 }
             }
-            for (info_estimator e: q.estimators) {
-                sum[e] += f < 1 ? stimulus_information(part, e, settings) : r.info_bits.at(e);
-            }
+            for (info_estimator e: q.estimators) sum[e] += stimulus_information(part, e, settings);
         }
-        for (info_estimator e: q.estimators) r.info_by_fraction[e].push_back(sum[e] / repeats);
+        for (info_estimator e: q.estimators) r.info_by_fraction[e].push_back(sum[e] / q.trial_fraction_repeats);
     }
 }
 

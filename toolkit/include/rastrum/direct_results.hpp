@@ -11,6 +11,7 @@
 namespace rastrum {
 
 nlohmann::ordered_json direct_parameters_json(const direct_request& request);
+/// The result without its `curves` (curves_json of direct_curves gives them).
 nlohmann::ordered_json direct_json(const std::vector<direct_record>& records, const direct_request& request,
                                    const provenance& origin);
 std::string direct_csv(const std::vector<direct_record>& records);

@@ -11,6 +11,7 @@
 namespace rastrum {
 
 nlohmann::ordered_json stiminfo_parameters_json(const stiminfo_request& request);
+/// The result without its `curves` (curves_json of stiminfo_curves gives them).
 nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records, const stiminfo_request& request,
                                      const provenance& origin);
 std::string stiminfo_csv(const std::vector<stiminfo_record>& records, const stiminfo_request& request);

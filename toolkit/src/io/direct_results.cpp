@@ -1,5 +1,4 @@
 #include <rastrum/csv.hpp>
-#include <rastrum/curves_output.hpp>
 #include <rastrum/direct_results.hpp>
 
 #include <cmath>
@@ -93,7 +92,6 @@ nlohmann::ordered_json direct_json(const std::vector<direct_record>& records, co
     add_trial_selection(j["parameters"], request.trials);
     j["records"] = json::array();
     for (const auto& r: records) j["records"].push_back(record_json(r));
-    j["curves"] = curves_json(direct_curves(records));
     return j;
 }
 

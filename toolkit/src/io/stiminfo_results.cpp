@@ -1,5 +1,4 @@
 #include <rastrum/csv.hpp>
-#include <rastrum/curves_output.hpp>
 #include <rastrum/stiminfo_results.hpp>
 
 #include <algorithm>
@@ -109,7 +108,6 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
              {"population", population_json(r, q)},
              {"warnings", r.warnings}});
     }
-    j["curves"] = curves_json(stiminfo_curves(records, q));
     return j;
 }
 
