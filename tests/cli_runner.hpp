@@ -14,8 +14,8 @@ struct process_result {
 process_result run_rastrum(const std::string& args);
 
 /// As run_rastrum, within `seconds` (exit code 124 when it takes longer) and `memory_kib` KiB of
-/// virtual memory (an allocation beyond it fails): for inputs that must neither hang nor ask for
-/// memory they cannot justify.
+/// virtual memory (an allocation beyond it fails; in a sanitized build the sanitizer enforces the limit):
+/// for inputs that must neither hang nor ask for memory they cannot justify.
 process_result run_rastrum_limited(const std::string& args, unsigned seconds, unsigned long memory_kib);
 
 /// The same from the working directory `folder`.

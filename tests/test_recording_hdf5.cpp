@@ -8,6 +8,9 @@
 
 #include <H5Cpp.h>
 #include <gtest/gtest.h>
+#ifdef RASTRUM_SANITIZED
+#include <sanitizer/lsan_interface.h>
+#endif
 
 #include <cmath>
 #include <cstdint>
@@ -689,6 +692,15 @@ TEST(Damaged, DamagedBytesAreReadOrRefusedNeverACrash) {
     ASSERT_GT(bytes.size(), 1000u);
     const std::string damaged = scratch();
     std::size_t refused = 0;
+    const ssize_t open_before = H5Fget_obj_count(H5F_OBJ_ALL, H5F_OBJ_ALL);
+#ifdef RASTRUM_SANITIZED
+    // HDF5 1.10.8 loses memory on its own error paths while it refuses damaged headers (about 137 KB
+    // over this loop, with every identifier of ours closed: the check after the loop). Its free lists
+    // recycle blocks, so the stacks LeakSanitizer shows are of earlier, unrelated allocations; the
+    // lists are emptied first and leak checking is off for the loop alone (notes/robustness.md).
+    H5garbage_collect();
+    __lsan_disable();
+#endif
     for (std::size_t i = 0; i < bytes.size(); i += 7) {  // a sample keeps the suite quick
         std::string copy = bytes;
         copy[i] = static_cast<char>(~copy[i]);
@@ -700,4 +712,11 @@ TEST(Damaged, DamagedBytesAreReadOrRefusedNeverACrash) {
         }
     }
     EXPECT_GT(refused, 0u);  // header damage must be noticed, not read as something else
+    // Every refusal closed what it opened: no file, group, dataset, type or attribute identifier is
+    // left open (design; the count starts at the C++ API's predefined types, 125 in HDF5 1.10.8).
+    EXPECT_EQ(H5Fget_obj_count(H5F_OBJ_ALL, H5F_OBJ_ALL), open_before);
+#ifdef RASTRUM_SANITIZED
+    H5garbage_collect();
+    __lsan_enable();
+#endif
 }
