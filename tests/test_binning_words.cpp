@@ -2,11 +2,15 @@
 #include <rastrum/binning.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/random.hpp>
+#include <rastrum/sparse_words.hpp>
 #include <rastrum/words.hpp>
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
+#include <set>
+#include <tuple>
 
 using namespace rastrum;
 
@@ -43,30 +47,6 @@ TEST(words, longest_codable_word) {
     EXPECT_EQ(longest_codable_word(256), 8);
 }
 
-TEST(words, codes_are_base_alphabet_digits_first_letter_most_significant) {
-    random_stream rng(3);
-    std::vector<std::vector<seconds>> trials(5);
-    for (auto& t: trials) {
-        for (double x = rng.exponential() * 0.01; x < 0.1; x += rng.exponential() * 0.01) t.push_back(x);
-    }
-    const auto m = bin_spikes(trials, 0.004, 25, false);
-    const word_code alphabet = m.largest + 1;
-    const int max_letters = 7;
-    word_codes words(m, alphabet, max_letters);
-    for (int L = 1; L <= max_letters; ++L) {
-        if (L > 1) words.grow();
-        ASSERT_EQ(words.positions(), m.bins - static_cast<std::size_t>(L) + 1);
-        for (std::size_t t = 0; t < words.positions(); ++t) {
-            for (std::size_t k = 0; k < m.trials; ++k) {
-                word_code expected = 0;
-                for (int j = 0; j < L; ++j) expected = expected * alphabet + m.at(t + static_cast<std::size_t>(j), k);
-                ASSERT_EQ(words.at_position(t)[k], expected) << "L " << L << " t " << t << " k " << k;
-            }
-        }
-    }
-    EXPECT_NEAR(words.word_space(), std::pow(static_cast<double>(alphabet), max_letters), 1e-6);
-}
-
 TEST(words, too_long_words_are_refused_with_the_longest_that_fits) {
     letter_matrix m;
     m.trials = 1;
@@ -75,9 +55,67 @@ TEST(words, too_long_words_are_refused_with_the_longest_that_fits) {
     m.letters[3] = 9;
     m.largest = 9;
     try {
-        word_codes words(m, 10, 20);
+        sparse_words words(m, 10, 20);
         FAIL() << "expected insufficient_data";
     } catch (const insufficient_data& e) {
         EXPECT_NE(std::string(e.what()).find("at most 19 letters"), std::string::npos) << e.what();
+    }
+}
+
+namespace {
+
+letter_matrix random_letters(std::size_t trials, std::size_t bins, double spike_probability, letter largest,
+                             std::uint64_t seed) {
+    random_stream rng(seed);
+    letter_matrix m;
+    m.trials = trials;
+    m.bins = bins;
+    m.letters.assign(trials * bins, 0);
+    for (auto& l: m.letters) {
+        if (rng.uniform() < spike_probability) l = 1 + static_cast<letter>(rng.below(largest));
+        m.largest = std::max(m.largest, l);
+    }
+    return m;
+}
+
+}  // namespace
+
+// The listed words must be exactly the words holding a spike, with the codes of the definition
+// above, and both lists sorted by code (what the counting relies on).
+TEST(sparse_words, lists_exactly_the_words_holding_a_spike_sorted_by_code) {
+    struct scenario {
+        double p;
+        letter largest;
+        int max_letters;
+    };
+    for (const scenario sc: {scenario{0.02, 1, 16}, scenario{0.3, 1, 12}, scenario{0.1, 3, 9}, scenario{0.6, 5, 6}}) {
+        const auto m = random_letters(23, 60, sc.p, sc.largest, 11 + static_cast<std::uint64_t>(sc.max_letters));
+        const word_code alphabet = std::max<word_code>(2, m.largest + 1);
+        sparse_words words(m, alphabet, sc.max_letters);
+        for (int L = 1; L <= sc.max_letters; ++L) {
+            if (L > 1) words.grow();
+            ASSERT_EQ(words.positions(), m.bins - static_cast<std::size_t>(L) + 1);
+            std::multiset<std::tuple<word_code, std::uint32_t, std::uint32_t>> expected, pooled;
+            for (std::size_t t = 0; t < words.positions(); ++t) {
+                std::multiset<std::tuple<word_code, std::uint32_t, std::uint32_t>> here, listed;
+                for (std::size_t k = 0; k < m.trials; ++k) {
+                    word_code code = 0;
+                    for (int j = 0; j < L; ++j) code = code * alphabet + m.at(t + static_cast<std::size_t>(j), k);
+                    if (code != 0) here.insert({code, static_cast<std::uint32_t>(k), static_cast<std::uint32_t>(t)});
+                }
+                for (const auto* e = words.begin_at(t); e < words.end_at(t); ++e) {
+                    listed.insert({e->code, e->trial, e->position});
+                    if (e + 1 < words.end_at(t)) ASSERT_LE(e->code, (e + 1)->code) << "L " << L << " t " << t;
+                }
+                ASSERT_EQ(listed, here) << "L " << L << " t " << t;
+                expected.insert(here.begin(), here.end());
+            }
+            const auto& all = words.pooled();
+            for (std::size_t i = 0; i < all.size(); ++i) {
+                pooled.insert({all[i].code, all[i].trial, all[i].position});
+                if (i + 1 < all.size()) ASSERT_LE(all[i].code, all[i + 1].code) << "L " << L;
+            }
+            ASSERT_EQ(pooled, expected) << "L " << L;
+        }
     }
 }

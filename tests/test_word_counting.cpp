@@ -1,7 +1,9 @@
 // Counting words in nested subsets of trials in one pass, against counting each subset directly.
 #include <rastrum/random.hpp>
 #include <rastrum/trial_partition.hpp>
-#include <rastrum/word_counting.hpp>
+#include <rastrum/subset_tally.hpp>
+
+#include <algorithm>
 
 #include <gtest/gtest.h>
 
@@ -25,32 +27,77 @@ TEST(trial_partition, blocks_are_near_equal_and_nested) {
     EXPECT_EQ(make_nested_splits(150, 3, 42)[2].block_of, splits[2].block_of);  // seeded
 }
 
-TEST(word_counting, one_pass_equals_direct_counts_in_every_subset) {
+// The tally must give, for every subset, the summary of the histograms counted directly (common
+// practice: count each subset's words in a map, then sum the summaries of the histograms), for words
+// seen once, a few times, more often than the 255 a byte lane holds and more often than the table
+// holds, and for the unlisted all-zero word.
+TEST(subset_tally, equals_direct_counts_in_every_subset) {
     random_stream rng(99);
     const std::size_t trials = 37;
     const auto splits = make_nested_splits(trials, 4, 1);
-    std::vector<word_occurrence> words;
-    for (int i = 0; i < 3000; ++i) {
-        words.push_back({rng.below(1 + rng.below(50)), static_cast<std::uint32_t>(rng.below(trials))});
+    struct histogram {
+        std::vector<sparse_words::entry> words;
+        count per_trial;
+    };
+    std::vector<histogram> histograms(2);
+    histograms[0].per_trial = 400;
+    histograms[1].per_trial = 150;
+    for (auto& h: histograms) {
+        for (int i = 0; i < 2000; ++i) {
+            h.words.push_back({1 + rng.below(1 + rng.below(50)), static_cast<std::uint32_t>(rng.below(trials)), 0});
+        }
+        for (int i = 0; i < 1200; ++i) h.words.push_back({100 + rng.below(900), static_cast<std::uint32_t>(rng.below(trials)), 0});
+        for (int i = 0; i < 700; ++i) h.words.push_back({77, static_cast<std::uint32_t>(rng.below(trials)), 0});
+        std::sort(h.words.begin(), h.words.end(), [](const auto& a, const auto& b) { return a.code < b.code; });
+        // At most per_trial words per trial, as in a real histogram.
+        std::vector<count> in_trial(trials, 0);
+        std::vector<sparse_words::entry> kept;
+        for (const auto& w: h.words) {
+            if (in_trial[w.trial]++ < h.per_trial) kept.push_back(w);
+        }
+        h.words = kept;
     }
-    sort_by_code(words);
-    subset_counter counter(splits);
-    counter.count_sorted(words);
-    for (std::size_t s = 0; s < splits.size(); ++s) {
-        for (int level = 0; level < nested_levels; ++level) {
-            for (int b = 0; b < (1 << level); ++b) {
-                std::map<word_code, count> direct;
-                for (const auto& w: words) {
-                    const int block = splits[s].block_of[w.trial] >> (nested_levels - 1 - level);
-                    if (block == b) ++direct[w.code];
+    for (const count dense_limit: {count{5}, count{4096}}) {
+        subset_tally tally(splits, trials, dense_limit);
+        for (int repeat = 0; repeat < 2; ++repeat) {  // clear() must forget everything
+            tally.clear();
+            for (const auto& h: histograms) {
+                for (std::size_t i = 0; i < h.words.size();) {
+                    std::size_t j = i + 1;
+                    while (j < h.words.size() && h.words[j].code == h.words[i].code) ++j;
+                    tally.add_word(h.words.data() + i, h.words.data() + j);
+                    i = j;
                 }
-                count_summary expected;
-                for (const auto& [code, n]: direct) expected.add(n);
-                const auto& got = counter.summary(s, subset_index(level, b));
-                EXPECT_EQ(got.samples, expected.samples);
-                EXPECT_EQ(got.distinct, expected.distinct);
-                EXPECT_NEAR(got.sum_n_log2_n, expected.sum_n_log2_n, 1e-9);
-                EXPECT_NEAR(got.sum_leave_one_out, expected.sum_leave_one_out, 1e-9);
+                tally.close_histogram(h.words.data(), h.words.data() + h.words.size(), h.per_trial);
+            }
+            for (std::size_t s = 0; s < splits.size(); ++s) {
+                for (int level = 0; level < nested_levels; ++level) {
+                    for (int b = 0; b < (1 << level); ++b) {
+                        count_summary expected;
+                        for (const auto& h: histograms) {
+                            std::map<word_code, count> direct;
+                            count in_subset = 0;
+                            for (std::size_t k = 0; k < trials; ++k) {
+                                if ((splits[s].block_of[k] >> (nested_levels - 1 - level)) == b) ++in_subset;
+                            }
+                            direct[0] = h.per_trial * in_subset;
+                            for (const auto& w: h.words) {
+                                if ((splits[s].block_of[w.trial] >> (nested_levels - 1 - level)) == b) {
+                                    ++direct[w.code];
+                                    --direct[0];
+                                }
+                            }
+                            count_summary one;
+                            for (const auto& [code, n]: direct) one.add(n);
+                            expected.merge(one);
+                        }
+                        const auto got = tally.summary(s, subset_index(level, b));
+                        EXPECT_EQ(got.samples, expected.samples);
+                        EXPECT_EQ(got.distinct, expected.distinct);
+                        EXPECT_NEAR(got.sum_n_log2_n, expected.sum_n_log2_n, 1e-9 * expected.sum_n_log2_n);
+                        EXPECT_NEAR(got.sum_leave_one_out, expected.sum_leave_one_out, 1e-9 * expected.sum_leave_one_out);
+                    }
+                }
             }
         }
     }

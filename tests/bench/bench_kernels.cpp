@@ -6,10 +6,12 @@
 #include <rastrum/random.hpp>
 #include <rastrum/synthetic.hpp>
 #include <rastrum/trial_partition.hpp>
-#include <rastrum/word_counting.hpp>
-#include <rastrum/words.hpp>
+#include <rastrum/sparse_words.hpp>
+#include <rastrum/subset_tally.hpp>
 
 #include <benchmark/benchmark.h>
+
+#include <algorithm>
 
 using namespace rastrum;
 
@@ -36,35 +38,68 @@ void bin_spikes_kernel(benchmark::State& state) {
 }
 BENCHMARK(bin_spikes_kernel)->Arg(1)->Arg(4);
 
-void grow_words(benchmark::State& state) {
-    const auto letters = bin_spikes(poisson_trials(), 0.002, 5000, true);
+// Growing the words that hold a spike from 1 to 16 letters and keeping both lists sorted by code:
+// 100 trials x 10 s at 20 Hz in 0.5 ms bins (W1's finest). Items: every word of every length, listed
+// or not, so the figure compares with building all words densely.
+void grow_sparse_words(benchmark::State& state) {
+    const auto letters = bin_spikes(poisson_trials(), 0.0005, 20000, false);
+    const word_code alphabet = std::max<word_code>(2, word_code{letters.largest} + 1);
+    std::int64_t words_per_run = 0;
+    for (std::size_t L = 1; L <= 16; ++L) words_per_run += static_cast<std::int64_t>((20000 - L + 1) * 100);
     for (auto _: state) {
-        word_codes words(letters, 2, 12);
-        for (int L = 2; L <= 12; ++L) words.grow();
-        benchmark::DoNotOptimize(words.at_position(0));
+        sparse_words words(letters, alphabet, 16);
+        for (int L = 2; L <= 16; ++L) words.grow();
+        benchmark::DoNotOptimize(words.pooled().data());
     }
-    state.SetItemsProcessed(static_cast<std::int64_t>(state.iterations()) * 11 * 5000 * 100);
+    state.SetItemsProcessed(static_cast<std::int64_t>(state.iterations()) * words_per_run);
 }
-BENCHMARK(grow_words);
+BENCHMARK(grow_sparse_words)->Unit(benchmark::kMillisecond);
 
-// Counting random codes from a word space of 2^k words in all 15 subsets of 8 nested splits.
-void count_subsets(benchmark::State& state) {
+// Word counting: 10^6 random codes from a word space of 2^k words, 100 trials, counted in all 15
+// subsets of 8 nested splits (the tally the direct method runs). The codes come sorted, as the
+// direct method keeps them (grow_sparse_words measures that); items are words counted.
+void count_words_in_subsets(benchmark::State& state) {
     const auto space = std::uint64_t{1} << state.range(0);
-    const std::size_t trials = 100, n = 100000;
+    const std::size_t trials = 100, n = 1000000;
     const auto splits = make_nested_splits(trials, 8, 3);
     random_stream rng(5);
-    std::vector<word_occurrence> words(n);
-    for (std::size_t i = 0; i < n; ++i) words[i] = {rng.below(space), static_cast<std::uint32_t>(i % trials)};
-    subset_counter counter(splits);
+    std::vector<sparse_words::entry> words(n);
+    for (std::size_t i = 0; i < n; ++i) {
+        words[i] = {1 + rng.below(space), static_cast<std::uint32_t>(i % trials), static_cast<std::uint32_t>(i / trials)};
+    }
+    std::sort(words.begin(), words.end(), [](const auto& a, const auto& b) { return a.code < b.code; });
+    subset_tally tally(splits, trials, 4096);
     for (auto _: state) {
-        auto copy = words;
-        sort_by_code(copy);
-        counter.count_sorted(copy);
-        benchmark::DoNotOptimize(counter.summary(0, 0));
+        tally.clear();
+        for (std::size_t i = 0; i < n;) {
+            std::size_t j = i + 1;
+            while (j < n && words[j].code == words[i].code) ++j;
+            tally.add_word(words.data() + i, words.data() + j);
+            i = j;
+        }
+        tally.close_histogram(words.data(), words.data() + n, n / trials);
+        benchmark::DoNotOptimize(tally.summary(0, 0));
     }
     state.SetItemsProcessed(static_cast<std::int64_t>(state.iterations() * n));
 }
-BENCHMARK(count_subsets)->Arg(4)->Arg(10)->Arg(16);
+BENCHMARK(count_words_in_subsets)->Arg(4)->Arg(8)->Arg(12)->Arg(16)->Unit(benchmark::kMillisecond);
+
+// The ceiling the counting is compared with: a plain histogram of the same codes, unsorted.
+void plain_histogram(benchmark::State& state) {
+    const auto space = std::uint64_t{1} << state.range(0);
+    const std::size_t n = 1000000;
+    random_stream rng(5);
+    std::vector<std::uint32_t> codes(n);
+    for (auto& c: codes) c = static_cast<std::uint32_t>(rng.below(space));
+    std::vector<std::uint32_t> histogram(space);
+    for (auto _: state) {
+        std::fill(histogram.begin(), histogram.end(), 0u);
+        for (const auto c: codes) ++histogram[c];
+        benchmark::DoNotOptimize(histogram.data());
+    }
+    state.SetItemsProcessed(static_cast<std::int64_t>(state.iterations() * n));
+}
+BENCHMARK(plain_histogram)->Arg(4)->Arg(16)->Unit(benchmark::kMillisecond);
 
 void estimators(benchmark::State& state) {
     random_stream rng(9);
@@ -79,14 +114,15 @@ void estimators(benchmark::State& state) {
 }
 BENCHMARK(estimators);
 
-// One unit at one bin width: 100 trials x 10 s at 20 Hz, 2 ms bins, letters 1-12.
+// One unit at one bin width: 100 trials x 10 s at 20 Hz, letters 1-16 (W1's), at 0.5 and 16 ms bins.
 void direct_one_unit(benchmark::State& state) {
-    const auto letters = bin_spikes(poisson_trials(), 0.002, 5000, false);
+    const double dt = static_cast<double>(state.range(0)) / 2000;
+    const auto letters = bin_spikes(poisson_trials(), dt, whole_bins(10, dt), false);
     direct_settings settings;
-    settings.letters_max = 12;
-    for (auto _: state) benchmark::DoNotOptimize(estimate_direct(letters, 0.002, settings));
+    settings.letters_max = 16;
+    for (auto _: state) benchmark::DoNotOptimize(estimate_direct(letters, dt, settings));
 }
-BENCHMARK(direct_one_unit)->Unit(benchmark::kMillisecond);
+BENCHMARK(direct_one_unit)->Arg(1)->Arg(32)->Unit(benchmark::kMillisecond);
 
 }  // namespace
 

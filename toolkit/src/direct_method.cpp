@@ -3,9 +3,8 @@
 #include <rastrum/format.hpp>
 #include <rastrum/extrapolation.hpp>
 #include <rastrum/trial_partition.hpp>
-#include <rastrum/word_counting.hpp>
-#include <rastrum/word_order.hpp>
-#include <rastrum/words.hpp>
+#include <rastrum/sparse_words.hpp>
+#include <rastrum/subset_tally.hpp>
 
 #include <algorithm>
 #include <array>
@@ -65,59 +64,69 @@ const std::array<entropy_estimator, subset_estimator_count> estimators{
 
 class length_measurer {
 public:
-    explicit length_measurer(const std::vector<nested_split>& splits):
-        cells_(splits.size() * nested_subsets), counter_(splits) {}
+    length_measurer(const std::vector<nested_split>& splits, std::size_t trials):
+        cells_(splits.size() * nested_subsets), noise_(splits, trials, trials),
+        total_(splits, trials, pooled_dense_limit) {}
 
-    subset_entropies measure(const word_codes& words, const word_order& order) {
+    subset_entropies measure(const sparse_words& words) {
         subset_entropies e;
-        measure_noise(words, order, e);
-        measure_total(words, order, e);
+        measure_noise(words, e);
+        measure_total(words, e);
         return e;
     }
 
 private:
-    const count_summary& cell(std::size_t c) const {
-        return counter_.summary(c / nested_subsets, static_cast<int>(c % nested_subsets));
-    }
+    // Counts up to this are tabulated for the pooled words; larger ones are rare and summed directly.
+    static constexpr count pooled_dense_limit = 4096;
 
-    void estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out,
-                        const std::vector<count_summary>& merged, double histograms) const {
+    void estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out, const subset_tally& tally,
+                        double histograms) const {
+        for (auto& v: out) v.assign(cells_, 0.0);
         for (std::size_t c = 0; c < cells_; ++c) {
-            const count samples_each = static_cast<count>(static_cast<double>(merged[c].samples) / histograms + 0.5);
-            const mean_summary mean = mean_of_histograms(merged[c], histograms, samples_each);
+            const count_summary merged = tally.summary(c / nested_subsets, static_cast<int>(c % nested_subsets));
+            const count samples_each = static_cast<count>(static_cast<double>(merged.samples) / histograms + 0.5);
+            const mean_summary mean = mean_of_histograms(merged, histograms, samples_each);
             for (std::size_t m = 0; m < static_cast<std::size_t>(subset_estimator_count); ++m) out[m][c] = estimators[m](mean);
         }
     }
 
-    // The word at one start position, across the trials of each subset; averaged over positions by
-    // averaging the histograms' sums (see mean_summary).
-    void measure_noise(const word_codes& words, const word_order& order, subset_entropies& e) {
-        const auto n_trials = static_cast<std::uint32_t>(words.trials());
-        const std::size_t positions = words.positions();
-        merged_.assign(cells_, count_summary{});
-        for (std::size_t t = 0; t < positions; ++t) {
-            counter_.count_sorted(words.at_position(t), order.at_position(t), n_trials, n_trials);
-            for (std::size_t c = 0; c < cells_; ++c) merged_[c].merge(cell(c));
+    /// Every run of equal codes in [first, last), sorted by code, as one word of `tally`.
+    static void add_runs(subset_tally& tally, const sparse_words::entry* first, const sparse_words::entry* last) {
+        while (first < last) {
+            const sparse_words::entry* end = first + 1;
+            while (end < last && end->code == first->code) ++end;
+            tally.add_word(first, end);
+            first = end;
         }
-        for (auto& v: e.noise) v.assign(cells_, 0.0);
-        estimate_cells(e.noise, merged_, static_cast<double>(positions));
+    }
+
+    // The word at one start position, across the trials of each subset; averaged over positions by
+    // averaging the histograms' sums (see mean_summary), which the tally adds up exactly.
+    void measure_noise(const sparse_words& words, subset_entropies& e) {
+        const std::size_t positions = words.positions();
+        noise_.clear();
+        for (std::size_t t = 0; t < positions; ++t) {
+            add_runs(noise_, words.begin_at(t), words.end_at(t));
+            noise_.close_histogram(words.begin_at(t), words.end_at(t), 1);
+        }
+        estimate_cells(e.noise, noise_, static_cast<double>(positions));
     }
 
     // Words pooled over every start position and every trial of each subset.
-    void measure_total(const word_codes& words, const word_order& order, subset_entropies& e) {
-        const auto& pooled = order.pooled();
-        counter_.count_sorted(words.all().data(), pooled.data(), pooled.size(), static_cast<std::uint32_t>(words.trials()));
-        merged_.assign(cells_, count_summary{});
-        for (std::size_t c = 0; c < cells_; ++c) merged_[c] = cell(c);
-        for (auto& v: e.total) v.assign(cells_, 0.0);
-        estimate_cells(e.total, merged_, 1.0);
-        e.samples = cell(0).samples;
-        e.distinct = cell(0).distinct;
+    void measure_total(const sparse_words& words, subset_entropies& e) {
+        const auto& pooled = words.pooled();
+        total_.clear();
+        add_runs(total_, pooled.data(), pooled.data() + pooled.size());
+        total_.close_histogram(pooled.data(), pooled.data() + pooled.size(), words.positions());
+        estimate_cells(e.total, total_, 1.0);
+        const count_summary all = total_.summary(0, 0);
+        e.samples = all.samples;
+        e.distinct = all.distinct;
     }
 
     std::size_t cells_;
-    subset_counter counter_;
-    std::vector<count_summary> merged_;
+    subset_tally noise_;
+    subset_tally total_;
 };
 
 /// Extrapolation to infinite data from all trials, the halves and the quarters of every split;
@@ -258,16 +267,12 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
     std::vector<double> total_all, noise_all, total_other, noise_other;
     std::vector<std::vector<double>> total_half(n_halves), noise_half(n_halves);
 
-    word_codes words(letters, std::max<word_code>(2, word_code{letters.largest} + 1), settings.letters_max);
-    word_order order(words);
-    length_measurer measurer(splits);
+    sparse_words words(letters, std::max<word_code>(2, word_code{letters.largest} + 1), settings.letters_max);
+    length_measurer measurer(splits, n_trials);
     for (int L = 1; L <= settings.letters_max; ++L) {
-        if (L > 1) {
-            words.grow();
-            order.update(words);
-        }
+        if (L > 1) words.grow();
         if (L < settings.letters_min) continue;
-        const subset_entropies e = measurer.measure(words, order);
+        const subset_entropies e = measurer.measure(words);
 
         letters_estimate le;
         le.letters = L;

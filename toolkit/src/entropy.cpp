@@ -25,12 +25,17 @@ double n_log2_n(count n) {
     return x * std::log2(x);
 }
 
+double n_log2_n_step(double n) {
+    if (n <= 1) return 0;
+    // n log2 n - (n-1) log2(n-1) = log2(n-1) + n log2(n / (n-1)), without subtracting large numbers.
+    return std::log2(n - 1) + n * std::log1p(1 / (n - 1)) / std::log(2.0);
+}
+
 void count_summary::add_several(count n) {
     samples += n;
     ++distinct;
-    const double f = n_log2_n(n);
-    sum_n_log2_n += f;
-    sum_leave_one_out += static_cast<double>(n) * (f - n_log2_n(n - 1));
+    sum_n_log2_n += n_log2_n(n);
+    sum_leave_one_out += static_cast<double>(n) * n_log2_n_step(static_cast<double>(n));
 }
 
 void count_summary::merge(const count_summary& o) {
@@ -69,12 +74,12 @@ double miller_madow_entropy(const mean_summary& s) {
 
 double jackknife_entropy(const mean_summary& s) {
     if (s.samples < 2) return plugin_entropy(s);
-    const double n = s.samples;
     // Leaving out one sample of a word seen n_i times gives
-    //   H_(-i) = log2(N-1) - (S - f(n_i) + f(n_i - 1)) / (N-1),  S = sum f(n_j);
-    // summing n_i H_(-i) over words gives N log2(N-1) - (N S - sum n_i (f(n_i) - f(n_i - 1))) / (N-1).
-    const double sum_left_out = n * std::log2(n - 1) - (n * s.sum_n_log2_n - s.sum_leave_one_out) / (n - 1);
-    return n * plugin_entropy(s) - (n - 1) * sum_left_out / n;
+    //   H_(-i) = log2(N-1) - (S - f(n_i) + f(n_i - 1)) / (N-1),  S = sum f(n_j), f(n) = n log2 n;
+    // summing n_i H_(-i) over words gives N log2(N-1) - (N S - L) / (N-1), L = sum n_i (f(n_i) - f(n_i - 1)).
+    // N H - (N-1) <H_(-i)> then simplifies to (f(N) - f(N-1)) - L / N: the same value without the
+    // difference of two numbers near N H, which lost about log10 N digits.
+    return n_log2_n_step(s.samples) - s.sum_leave_one_out / s.samples;
 }
 
 double plugin_entropy(const count_summary& s) { return plugin_entropy(as_mean(s)); }

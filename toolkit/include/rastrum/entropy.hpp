@@ -10,6 +10,8 @@ namespace rastrum {
 
 /// n log2 n, with 0 log 0 = 0; tabulated for small n.
 double n_log2_n(count n);
+/// f(n) - f(n - 1) for f(n) = n log2 n (0 for n <= 1), computed without cancellation.
+double n_log2_n_step(double n);
 
 /// The sums over a histogram's non-zero counts n_i that the estimators need.
 struct count_summary {

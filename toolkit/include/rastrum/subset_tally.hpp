@@ -1,0 +1,86 @@
+#pragma once
+/// Counting words in all 15 nested subsets of trials of several random splits at once.
+///
+/// What the entropy estimators need from a histogram is its count of counts: how many distinct
+/// words were seen n times, for each n (count_summary). The tally keeps exactly that per subset, in
+/// integers, so summing histograms (the noise entropy's mean over start positions) is exact and
+/// independent of order, and n log n is evaluated once per value of n at the end, not per word.
+/// Words seen once in a subset need no counting at all: they add 0 to the sums of n log n, and the
+/// number of distinct words follows from the sample size (every trial holds the same number of
+/// words) minus the repeats of the words seen more often.
+///
+/// A word is given as its occurrences (their trials). A few occurrences are placed in subsets from
+/// their trials' blocks; many are summed as vectors of byte lanes, one lane per eighth of each split,
+/// so one vector add per occurrence counts it in every eighth; quarters, halves and the whole set
+/// are sums of eighths.
+#include <rastrum/entropy.hpp>
+#include <rastrum/sparse_words.hpp>
+#include <rastrum/trial_partition.hpp>
+#include <rastrum/types.hpp>
+
+#include <cstddef>
+#include <cstdint>
+#include <vector>
+
+namespace rastrum {
+
+class subset_tally {
+public:
+    /// Counts up to `dense_limit` are tallied in a table; larger ones (rare) are summed directly.
+    subset_tally(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit);
+
+    /// Forgets every word and histogram.
+    void clear();
+
+    /// One distinct word, occurring once at each of the entries' trials (a run of equal codes).
+    void add_word(const sparse_words::entry* first, const sparse_words::entry* last);
+
+    /// Ends one histogram in which every trial holds `per_trial` words: the listed occurrences
+    /// [first, last) of the words added since the last close, and the all-zero word, which was not
+    /// listed, for the rest. Several closed histograms are summed (the noise entropy's positions).
+    void close_histogram(const sparse_words::entry* first, const sparse_words::entry* last, count per_trial);
+
+    /// Summary of the summed histograms of subset `subset_index(level, block)` of split `split`.
+    count_summary summary(std::size_t split, int subset) const;
+
+private:
+    /// Occurrences per eighth of every split, in eighths_ (split * 8 + block).
+    void count_eighths(const sparse_words::entry* first, const sparse_words::entry* last);
+    template <std::size_t fixed_lanes>
+    void add_byte_lanes(const sparse_words::entry* first, const sparse_words::entry* last);
+    /// Tallies one word whose occurrences per eighth are in `eighths`.
+    void tally(const std::uint32_t* eighths);
+    /// Tallies one word of a few occurrences straight from their trials' blocks.
+    void tally_few(const sparse_words::entry* first, const sparse_words::entry* last);
+    /// One more word seen n >= 2 times in `cell`.
+    void bump(std::size_t cell, count n) {
+        if (n > dense_limit_) {
+            beyond_[cell].add(n);
+            return;
+        }
+        ++frequency_[cell * row_ + n];
+        if (n > largest_[cell]) largest_[cell] = n;
+    }
+    static constexpr std::ptrdiff_t few_occurrences = 3;
+
+    const std::vector<nested_split>& splits_;
+    std::size_t trials_;
+    std::size_t lanes_;                     // splits * 8
+    count dense_limit_;
+    std::size_t row_;                       // dense_limit + 1
+    std::vector<std::uint8_t> lane_of_;     // trials x lanes_: 1 in lane split * 8 + block of the trial
+    std::vector<std::uint32_t> lane_index_; // trials x splits: the lane of the trial in each split
+    std::vector<count> eighth_size_;        // lanes_: trials in each eighth
+    std::vector<count> cell_size_;          // trials in each subset (split * 15 + subset)
+    std::vector<double> n_log2_n_;          // f(n) = n log2 n up to dense_limit
+    std::vector<double> leave_one_out_;     // n (f(n) - f(n - 1))
+    std::vector<std::uint32_t> frequency_;  // cells x row_: words seen n times
+    std::vector<count> largest_;            // per cell, the largest tabulated n
+    std::vector<count_summary> beyond_;     // per cell, words seen more than dense_limit times
+    count per_trial_ = 0;                   // words per trial, over the closed histograms
+    std::vector<std::uint32_t> eighths_;    // lanes_
+    std::vector<std::uint8_t> partial_;     // lanes_, byte sums of fewer than 256 occurrences
+    std::vector<std::uint32_t> listed_;     // per trial, listed words of the histogram being closed
+};
+
+}  // namespace rastrum

@@ -1,0 +1,195 @@
+#include <rastrum/errors.hpp>
+#include <rastrum/subset_tally.hpp>
+
+#include <algorithm>
+#include <cmath>
+
+namespace rastrum {
+
+namespace {
+
+using entry = sparse_words::entry;
+
+/// Counts of the 15 nested subsets from the counts of the 8 eighths, in subset_index order.
+template <typename T>
+void compose(const T* eighths, T* subsets) {
+    T* out = subsets;
+    for (int b = 0; b < 8; ++b) out[subset_index(3, b)] = eighths[b];
+    for (int q = 0; q < 4; ++q) out[subset_index(2, q)] = eighths[2 * q] + eighths[2 * q + 1];
+    for (int h = 0; h < 2; ++h) out[subset_index(1, h)] = out[subset_index(2, 2 * h)] + out[subset_index(2, 2 * h + 1)];
+    out[subset_index(0, 0)] = out[subset_index(1, 0)] + out[subset_index(1, 1)];
+}
+
+}  // namespace
+
+subset_tally::subset_tally(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit):
+    splits_(splits), trials_(trials), lanes_(splits.size() * nested_blocks),
+    dense_limit_(std::max<count>(dense_limit, 2)), row_(static_cast<std::size_t>(dense_limit_) + 1) {
+    const std::size_t cells = splits.size() * nested_subsets;
+    lane_of_.assign(trials_ * lanes_, 0);
+    lane_index_.assign(trials_ * splits.size(), 0);
+    eighth_size_.assign(lanes_, 0);
+    cell_size_.assign(cells, 0);
+    for (std::size_t s = 0; s < splits.size(); ++s) {
+        if (splits[s].block_of.size() != trials_) throw internal_error("subset_tally: split of another trial count");
+        for (std::size_t k = 0; k < trials_; ++k) {
+            const std::size_t lane = s * nested_blocks + splits[s].block_of[k];
+            lane_of_[k * lanes_ + lane] = 1;
+            lane_index_[k * splits.size() + s] = static_cast<std::uint32_t>(lane);
+            ++eighth_size_[lane];
+        }
+        compose(eighth_size_.data() + s * nested_blocks, cell_size_.data() + s * nested_subsets);
+    }
+    n_log2_n_.resize(row_);
+    leave_one_out_.resize(row_);
+    for (count n = 0; n <= dense_limit_; ++n) {
+        n_log2_n_[n] = n_log2_n(n);
+        leave_one_out_[n] = static_cast<double>(n) * n_log2_n_step(static_cast<double>(n));
+    }
+    frequency_.assign(cells * row_, 0);
+    largest_.assign(cells, 0);
+    beyond_.assign(cells, count_summary{});
+    eighths_.assign(lanes_, 0);
+    partial_.assign(lanes_, 0);
+}
+
+void subset_tally::clear() {
+    for (std::size_t c = 0; c < largest_.size(); ++c) {
+        std::fill_n(frequency_.begin() + static_cast<std::ptrdiff_t>(c * row_), largest_[c] + 1, 0u);
+        largest_[c] = 0;
+    }
+    std::fill(beyond_.begin(), beyond_.end(), count_summary{});
+    per_trial_ = 0;
+}
+
+void subset_tally::count_eighths(const entry* first, const entry* last) {
+    std::fill(eighths_.begin(), eighths_.end(), 0u);
+    const std::size_t lanes = lanes_;
+    if (last - first <= 12) {  // lane by lane; more by adding each trial's byte lanes
+        const std::size_t splits = splits_.size();
+        for (; first < last; ++first) {
+            const std::uint32_t* lane = lane_index_.data() + first->trial * splits;
+            for (std::size_t s = 0; s < splits; ++s) ++eighths_[lane[s]];
+        }
+        return;
+    }
+    if (lanes == 64) {
+        add_byte_lanes<64>(first, last);  // the default 8 splits: a fixed width the compiler unrolls
+    } else {
+        add_byte_lanes<0>(first, last);
+    }
+}
+
+template <std::size_t fixed_lanes>
+void subset_tally::add_byte_lanes(const entry* first, const entry* last) {
+    const std::size_t lanes = fixed_lanes == 0 ? lanes_ : fixed_lanes;
+    std::uint8_t* partial = partial_.data();
+    const std::uint8_t* lane_of = lane_of_.data();
+    while (first < last) {
+        // Byte lanes hold at most 255 occurrences; widen them before they could overflow.
+        const entry* stop = first + std::min<std::ptrdiff_t>(255, last - first);
+        std::fill_n(partial, lanes, std::uint8_t{0});
+        for (; first < stop; ++first) {
+            const std::uint8_t* __restrict lane = lane_of + first->trial * lanes;
+            for (std::size_t i = 0; i < lanes; ++i) partial[i] = static_cast<std::uint8_t>(partial[i] + lane[i]);
+        }
+        for (std::size_t i = 0; i < lanes; ++i) eighths_[i] += partial[i];
+    }
+}
+
+void subset_tally::tally(const std::uint32_t* eighths) {
+    std::uint32_t subsets[nested_subsets];
+    for (std::size_t s = 0; s < splits_.size(); ++s) {
+        compose(eighths + s * nested_blocks, subsets);
+        // The whole set is the same in every split: it is kept in split 0 only.
+        for (int i = s == 0 ? 0 : 1; i < nested_subsets; ++i) {
+            if (subsets[i] >= 2) bump(s * nested_subsets + static_cast<std::size_t>(i), subsets[i]);
+        }
+    }
+}
+
+void subset_tally::tally_few(const entry* first, const entry* last) {
+    const auto r = static_cast<std::size_t>(last - first);
+    bump(0, r);  // the whole set, kept in split 0
+    int block[few_occurrences];
+    for (std::size_t s = 0; s < splits_.size(); ++s) {
+        const std::uint8_t* block_of = splits_[s].block_of.data();
+        const std::size_t cells = s * nested_subsets;
+        if (r == 2) {
+            // Two occurrences share the subsets of every level above the highest bit where their blocks differ.
+            const int apart = block_of[first[0].trial] ^ block_of[first[1].trial];
+            const int b = block_of[first[0].trial];
+            if (apart < 4) bump(cells + static_cast<std::size_t>(subset_index(1, b >> 2)), 2);
+            if (apart < 2) bump(cells + static_cast<std::size_t>(subset_index(2, b >> 1)), 2);
+            if (apart == 0) bump(cells + static_cast<std::size_t>(subset_index(3, b)), 2);
+            continue;
+        }
+        for (std::size_t j = 0; j < r; ++j) block[j] = block_of[first[j].trial];
+        for (int level = 1; level < nested_levels; ++level) {
+            const int shift = nested_levels - 1 - level;
+            // Each subset holding two or more of the occurrences, with how many it holds.
+            for (std::size_t j = 0; j + 1 < r; ++j) {
+                const int b = block[j] >> shift;
+                bool seen = false;
+                for (std::size_t i = 0; i < j && !seen; ++i) seen = (block[i] >> shift) == b;
+                if (seen) continue;
+                count n = 1;
+                for (std::size_t i = j + 1; i < r; ++i) n += (block[i] >> shift) == b;
+                if (n >= 2) bump(cells + static_cast<std::size_t>(subset_index(level, b)), n);
+            }
+        }
+    }
+}
+
+void subset_tally::add_word(const entry* first, const entry* last) {
+    const std::ptrdiff_t r = last - first;
+    if (r <= 1) return;  // seen once in every subset holding it: found from the sample sizes
+    if (r <= few_occurrences) {
+        tally_few(first, last);
+    } else {
+        count_eighths(first, last);
+        tally(eighths_.data());
+    }
+}
+
+void subset_tally::close_histogram(const entry* first, const entry* last, count per_trial) {
+    if (static_cast<std::size_t>(last - first) > 4 * trials_) {
+        // Many listed words: count them per trial, then per eighth.
+        listed_.assign(trials_, 0);
+        for (const entry* e = first; e < last; ++e) ++listed_[e->trial];
+        std::fill(eighths_.begin(), eighths_.end(), 0u);
+        const std::size_t splits = splits_.size();
+        for (std::size_t k = 0; k < trials_; ++k) {
+            for (std::size_t s = 0; s < splits; ++s) eighths_[lane_index_[k * splits + s]] += listed_[k];
+        }
+    } else {
+        count_eighths(first, last);
+    }
+    for (std::size_t i = 0; i < lanes_; ++i) {
+        eighths_[i] = static_cast<std::uint32_t>(per_trial * eighth_size_[i] - eighths_[i]);
+    }
+    tally(eighths_.data());
+    per_trial_ += per_trial;
+}
+
+count_summary subset_tally::summary(std::size_t split, int subset) const {
+    if (subset == subset_index(0, 0)) split = 0;
+    const std::size_t cell = split * nested_subsets + static_cast<std::size_t>(subset);
+    // Words seen once in a subset add only to its samples and distinct words, and those follow
+    // from the samples: distinct = samples - sum over words seen n >= 2 times of (n - 1).
+    count_summary s = beyond_[cell];
+    count repeats = s.samples - s.distinct;  // occurrences beyond the first of each word seen twice or more
+    const std::uint32_t* frequency = frequency_.data() + cell * row_;
+    for (count n = 2; n <= largest_[cell]; ++n) {
+        const count words = frequency[n];
+        if (words == 0) continue;
+        repeats += words * (n - 1);
+        s.sum_n_log2_n += static_cast<double>(words) * n_log2_n_[n];
+        s.sum_leave_one_out += static_cast<double>(words) * leave_one_out_[n];
+    }
+    s.samples = per_trial_ * cell_size_[cell];
+    s.distinct = s.samples - repeats;
+    return s;
+}
+
+}  // namespace rastrum
