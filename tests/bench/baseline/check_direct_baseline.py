@@ -22,17 +22,17 @@ import sys
 HERE = os.path.dirname(os.path.abspath(__file__))
 PYTHON = sys.executable
 
-# The small case: 3 units x 42 trials x 2 s of inhomogeneous Poisson firing at 5, 20 and 40 Hz (42, not
-# 40: blocks of 5 and 6 trials, quarters of 10 and 11, so the fits weigh subsets of unequal sizes).
-SMALL = ["synth", "poisson", "--seed", "5", "--trials", "42", "--duration-s", "2", "--rate-hz", "5,20,40",
-         "--modulation", "1", "--correlation-ms", "15", "--resolution-ms", "0.5"]
+sys.dont_write_bytecode = True  # no __pycache__ in the source tree
+sys.path.insert(0, os.path.dirname(HERE))
+from workloads import SMALL_DIRECT, SMALL_SYNTH  # noqa: E402  (the small case is defined once, there)
+
 # (name, options, values at least compared: guards against a comparison of nothing)
 RUNS = [
     # The small reference case as it is.
-    ("defaults", ["--bin-ms", "2,4", "--letters", "1-6"], 2000),
+    ("defaults", SMALL_DIRECT, 2000),
     # With 42 trials the sampling rule passes no length at its default tolerance; looser ones make it
     # choose ranges such as 1-2, 2-3, 2-4 and 3-5, the lower end clamped to --letters.
-    ("rule", ["--bin-ms", "2,4", "--letters", "1-6", "--bias-tolerance", "0.3"], 2000),
+    ("rule", SMALL_DIRECT + ["--bias-tolerance", "0.3"], 2000),
     ("binary-plugin", ["--bin-ms", "2", "--letters", "2-6", "--binary", "--subset-estimator", "plug-in",
                        "--splits", "4", "--seed", "9", "--bias-tolerance", "0.2"], 900),
     # A range given by the user, 4 lengths (the 1/L fit's residual standard error is not 0).
@@ -46,7 +46,7 @@ def main():
     shutil.rmtree(folder, ignore_errors=True)
     os.makedirs(folder)
     recording = os.path.join(folder, "small.h5")
-    subprocess.run([rastrum] + SMALL + ["--out", recording], check=True)
+    subprocess.run([rastrum] + SMALL_SYNTH + ["--out", recording], check=True)
     failed = 0
     for name, options, least in RUNS:
         tool = os.path.join(folder, name + "-tool.json")
