@@ -6,8 +6,9 @@ package `time`): wall time, CPU time, peak resident memory; the ratio baseline /
 and, where a workload defines it, words counted per second. Also checks that the baseline's numbers
 on its subset equal the tool's (tests/bench/baseline/compare_direct.py).
 
-The baseline is far too slow for a whole workload, so it runs on the first K and the first 2K units
-(--baseline-units K, default 1) and its time for all units is extrapolated along the straight line
+The baseline is far too slow for a whole workload, so it runs on K and 2K of the units
+(--baseline-units K, default 1; for W1 spread evenly over the recording's 5-40 Hz, so that a subset's
+mean rate is the recording's: the middle unit, then the first and the last) and its time for all units is extrapolated along the straight line
 through those two points (time = fixed + per-unit x units). The output states this, with the ratio
 t(2K) / t(K), which is 2 when the time is proportional to units and less when a fixed cost (Python
 start, imports, reading the file) matters. Ratios are given for wall time and for CPU time (user +
@@ -27,7 +28,7 @@ Adding a workload (W2, W3, ...) is one entry in WORKLOADS below:
         tool=["stiminfo", "{dir}/w2.h5", ..., "--quiet", "--json", "{out}"],  # the timed rastrum command
         units=200,                                                    # units in the workload
         baseline=["{python}", "{here}/baseline/stiminfo_baseline.py", "{dir}/w2.h5", ...,
-                  "--first-units", "{units}", "--json", "{out}"],  # must analyse only the first {units}
+                  "--first-units", "{units}", "--json", "{out}"],  # must analyse only {units} units
         compare=["{python}", "{here}/baseline/compare_stiminfo.py", "{tool_json}", "{baseline_json}",
                  "--subset"],                                       # optional: exit 0 when numbers agree
         words=None)                                                  # optional: f(tool_json) -> words counted
@@ -101,7 +102,7 @@ WORKLOADS = {
               "--json", "{out}"],
         units=100,
         baseline=["{python}", "{here}/baseline/direct_baseline.py", "{dir}/w1.h5", "--bin-ms", W1_BINS,
-                  "--letters", "%d-%d" % W1_LETTERS, "--first-units", "{units}", "--json", "{out}"],
+                  "--letters", "%d-%d" % W1_LETTERS, "--spread-units", "{units}", "--json", "{out}"],
         compare=["{python}", "{here}/baseline/compare_direct.py", "{tool_json}", "{baseline_json}", "--subset"],
         words=direct_words_counted),
 }
@@ -173,7 +174,7 @@ def run_workload(name, w, opt, folder):
         command = fill(w["baseline"], out=out, units=str(units), **values)
         b = timed(command, folder, f"{name}-baseline-{units}", out, opt.reuse)
         result["baseline"][units] = b
-        print(f"baseline on the first {units} unit{'s' if units > 1 else ''}: wall {b['wall_s']:.1f} s, CPU "
+        print(f"baseline on {units} unit{'s' if units > 1 else ''}: wall {b['wall_s']:.1f} s, CPU "
               f"{b['cpu_s']:.1f} s, peak {b['peak_mib']:.0f} MiB", flush=True)
         if w["compare"]:
             check = subprocess.run(fill(w["compare"], tool_json=tool_json[1], baseline_json=out, **values),

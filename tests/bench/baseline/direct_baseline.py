@@ -26,7 +26,7 @@ Vigna 2021, ACM TOMS 47:36) seeded through SplitMix64 (Steele, Lea & Flood 2014)
 unit id, Lemire's unbiased integers (2019, ACM TOMACS 29:3) and a Fisher-Yates shuffle, all on
 Python integers masked to 64 bits.
 
-Usage: direct_baseline.py RECORDING.h5 --bin-ms 2,4 --letters 1-6 [--unit ID]... [--first-units K]
+Usage: direct_baseline.py RECORDING.h5 --bin-ms 2,4 --letters 1-6 [--unit ID]... [--first-units K | --spread-units K]
        [--splits 8] [--seed 1] [--subset-estimator jackknife] [--bias-tolerance 0.03]
        [--fit-letters A-B] [--binary] --json OUT
 Needs Debian's python3 with python3-numpy and python3-h5py.
@@ -452,6 +452,9 @@ def main():
     p.add_argument("--letters", required=True, type=int_range)
     p.add_argument("--unit", action="append", default=[])
     p.add_argument("--first-units", type=int, default=0, help="only the first K units in natural order")
+    p.add_argument("--spread-units", type=int, default=0,
+                   help="only K units spread evenly over the natural order (1: the middle one; 2: the first and "
+                        "the last), so that a subset has the whole recording's range of rates")
     p.add_argument("--splits", type=int, default=8)
     p.add_argument("--seed", type=int, default=1)
     p.add_argument("--subset-estimator", default="jackknife", choices=NAMES)
@@ -469,6 +472,9 @@ def main():
         names = opt.unit
     if opt.first_units:
         names = names[:opt.first_units]
+    if opt.spread_units:
+        k, n = opt.spread_units, len(names)
+        names = [names[(n - 1) // 2]] if k == 1 else [names[round(i * (n - 1) / (k - 1))] for i in range(min(k, n))]
     duration = float(np.min(stop - start))
     records, curves = [], []
     for name in names:
