@@ -9,8 +9,8 @@ recording itself (read with h5py), and writes JSON with the tool's field names:
         [--splits 8] [--seed 1] [--json OUT]
 
 Written as a competent lab member would, not as a tuned program: spike times are cut into trials
-with np.searchsorted, counted per trial with np.histogram, responses coded with NumPy integer
-arithmetic, and every histogram is an np.unique(..., return_counts=True) over the trials concerned.
+with np.searchsorted and boolean masks, letters counted with np.add.at, word codes built from the
+letters with Python integers, and every histogram is an np.unique(..., return_counts=True) over the trials concerned.
 Everything above one histogram is a Python loop: over units (and populations), over conditions,
 over the estimators, over the 1,000 label shuffles, the bootstrap resamples, the random splits of the
 quadratic extrapolation, the draws of the trial-fraction curve, over left-out trials for the
@@ -26,14 +26,14 @@ here from the published algorithms with Python integers masked to 64 bits; and e
 the stream the tool derives for it (seed tags as in stiminfo_analysis.cpp, stimulus_information.cpp
 and population.cpp). The estimators follow notes/methods.md section 8 and notes/methods-nsb.md; NSB
 uses the same integration scheme (coarse scan, golden-section peaks, Gauss-Kronrod 15 with the
-embedded Gauss 7, the same breakpoints and tolerances), with scipy's digamma and trigamma.
+embedded Gauss 7, the same breakpoints and tolerances), with scipy's digamma and a trigamma of its
+own (recurrence and asymptotic series).
 
 Only the single-window analysis with the count, word and latency codes is covered (no --slide-ms,
 --stimuli or trial selection); units are read in natural order of their ids, labels in order of first
 appearance, as the tool does.
 """
 import argparse
-import heapq
 import itertools
 import json
 import math
