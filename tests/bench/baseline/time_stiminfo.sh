@@ -50,6 +50,11 @@ for t in 1 2; do
   tool "tool-word-t$t" "${word[@]}" --threads "$t"
   tool "tool-w3-t$t" "${count[@]}" "${populations[@]}" --threads "$t"
 done
+# The tool on W3's subsets too, for the same extrapolation as the baseline's (a check of it).
+tool "tool-pairs-1" "${count[@]}" "${populations[@]:0:2}" --threads 1
+tool "tool-pairs-2" "${count[@]}" "${populations[@]:0:4}" --threads 1
+tool "tool-triplets-1" "${count[@]}" "${populations[@]:100:2}" --threads 1
+tool "tool-triplets-2" "${count[@]}" "${populations[@]:100:4}" --threads 1
 for n in "$s1" "$s2"; do
   mapfile -t chosen < <(units "$n")
   baseline "base-count-$n" "${count[@]}" "${chosen[@]}"
@@ -63,9 +68,10 @@ baseline "base-triplets-2" "${count[@]}" "${populations[@]:100:4}"
 
 # The whole workload from two subsets: t(N) = t1 + (t2 - t1) (N - n1) / (n2 - n1).
 extrapolate() { echo "$1 + ($2 - $1) * ($5 - $3) / ($4 - $3)" | bc -l; }
-w3_whole() {  # fixed cost + 50 pairs + 20 triplets, from the pair and triplet subsets of measure $1
+w3_whole() {  # fixed cost + 50 pairs + 20 triplets, from the subsets of measure $1 (wall, cpu) and program $2 (base, tool)
   local -n m=$1
-  echo "${m[base-pairs-1]} - (${m[base-pairs-2]} - ${m[base-pairs-1]}) + 50 * (${m[base-pairs-2]} - ${m[base-pairs-1]}) + 20 * (${m[base-triplets-2]} - ${m[base-triplets-1]})" | bc -l
+  local p1=${m[$2-pairs-1]} p2=${m[$2-pairs-2]} t1=${m[$2-triplets-1]} t2=${m[$2-triplets-2]}
+  echo "$p1 - ($p2 - $p1) + 50 * ($p2 - $p1) + 20 * ($t2 - $t1)" | bc -l
 }
 echo
 printf '%-9s %-5s %14s %18s %14s %15s %15s\n' workload time "baseline t2/t1" "baseline (whole)" "tool 1 thread" "tool 2 threads" "ratio 1 thread"
@@ -76,9 +82,10 @@ for kind in wall cpu; do
     printf '%-9s %-5s %14.2f %18.0f %14.2f %15.2f %15.0f\n' "W2 $w" "$kind" "$(echo "${m[base-$w-$s2]} / ${m[base-$w-$s1]}" | bc -l)" \
       "$whole" "${m[tool-$w-t1]}" "${m[tool-$w-t2]}" "$(echo "$whole / ${m[tool-$w-t1]}" | bc -l)"
   done
-  whole=$(w3_whole "$kind")
+  whole=$(w3_whole "$kind" base)
   printf '%-9s %-5s %14s %18.0f %14.2f %15.2f %15.0f\n' "W3" "$kind" \
     "$(printf '%.2f, %.2f' "$(echo "${m[base-pairs-2]} / ${m[base-pairs-1]}" | bc -l)" "$(echo "${m[base-triplets-2]} / ${m[base-triplets-1]}" | bc -l)")" \
     "$whole" "${m[tool-w3-t1]}" "${m[tool-w3-t2]}" "$(echo "$whole / ${m[tool-w3-t1]}" | bc -l)"
+  printf '%-9s %-5s %14s %18s %14.2f %15s %15s\n' "" "" "" "tool from subsets" "$(w3_whole "$kind" tool)" "" ""
   unset -n m
 done
