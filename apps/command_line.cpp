@@ -323,7 +323,15 @@ int analyse_and_write(int argc, char** argv, const recording_source& source, uns
     origin.started_utc = utc_now();
     origin.threads = effective_threads(threads);
     const recording rec = read_input(source, out.quiet, origin);
-    const rendered_results results = analyse(rec, origin);
+    const rendered_results results = [&] {
+        try {
+            return analyse(rec, origin);
+        } catch (const insufficient_data&) {
+            // A damaged unit the analysis did not reach is still the first thing to report (exit 3).
+            check_unread_units(rec);
+            throw;
+        }
+    }();
     // What the loader noticed about the units read during the analysis (sorted times, no spikes).
     if (rec.store) {
         for (const auto& w: rec.store->warnings()) note(out.quiet, "warning: " + w);

@@ -167,6 +167,21 @@ TEST(OnDemandDamaged, MatNanIsReportedWhenTheUnitIsRead) {
     expect_same_error(source_in(recording_format::mat, rec), 2, "spikes{3}(2)");
 }
 
+TEST(OnDemandDamaged, UnitsNotYetReadAreCheckedOnRequest) {
+    // What the commands do when an analysis stops early for lack of data: the damaged unit it did
+    // not reach is still reported, with the whole-file read's message.
+    recording rec = invented_recording();
+    rec.units[2].spike_times[1] = NAN;
+    const recording_source s = source_in(recording_format::nwb, rec);
+    const recording opened = rastrum::open_recording(s);
+    opened.spikes(0);
+    const rastrum::input_error e = input_error_of([&] { rastrum::check_unread_units(opened); });
+    EXPECT_EQ(e.object, "/units/spike_times[6]") << e.what();
+    EXPECT_TRUE(opened.store->was_read(0));
+    EXPECT_TRUE(opened.store->was_read(1));   // u2, read by the check and fine
+    EXPECT_FALSE(opened.store->was_read(2));  // u10 failed its checks
+}
+
 TEST(OnDemandDamaged, StructuralFaultsOfAUnitAreFoundAtOpening) {
     // A unit's dataset of the wrong type is known without reading its values, so opening refuses it.
     recording_source s = source_in(recording_format::native, invented_recording());

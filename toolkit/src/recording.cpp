@@ -161,6 +161,18 @@ std::vector<std::string> unit_store::warnings() const {
     return all;
 }
 
+bool unit_store::was_read(std::size_t u) const {
+    std::lock_guard<std::mutex> lock(mutex_);
+    return warnings_.at(u).has_value();
+}
+
+void check_unread_units(const recording& rec) {
+    if (!rec.store) return;
+    for (std::size_t u = 0; u < rec.units.size(); ++u) {
+        if (!rec.store->was_read(u)) rec.store->read(u);
+    }
+}
+
 void read_all_units(recording& rec) {
     if (!rec.store) return;
     for (std::size_t u = 0; u < rec.units.size(); ++u) rec.units[u].spike_times = rec.store->read(u);

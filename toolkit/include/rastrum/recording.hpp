@@ -58,6 +58,8 @@ public:
     std::vector<seconds> read(std::size_t u);
     /// The warnings of the units read so far, in the recording's order of units.
     std::vector<std::string> warnings() const;
+    /// Whether unit u has been read (and so passed its checks) at least once.
+    bool was_read(std::size_t u) const;
 
 private:
     std::unique_ptr<unit_loader> loader_;
@@ -101,6 +103,11 @@ struct recording {
 /// Reads every unit of a recording opened on demand into `rec.units` (in order, each unit's warnings
 /// added to rec.warnings as it is read) and drops the store; a recording held whole is left as it is.
 void read_all_units(recording& rec);
+
+/// Reads, and lets go, every unit of a recording opened on demand that has not been read yet, one at
+/// a time, so that a damaged unit is reported (input_error) even when the analysis stopped before it:
+/// input errors then come before a shortage of data, as when the whole file was read first.
+void check_unread_units(const recording& rec);
 
 /// Where the parts of a recording sit in the file(s) it came from, so that validate() can name
 /// them in the source's own terms (an NWB dataset, a MATLAB variable, a CSV line). The default
