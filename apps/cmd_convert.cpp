@@ -59,7 +59,7 @@ int run_convert(int argc, char** argv) {
     if (!overwrite && std::filesystem::exists(out)) throw usage_error(out + " exists; choose another name or add --overwrite");
 
     provenance origin;
-    const recording rec = read_input(source, quiet, origin);
+    const recording rec = read_input(source, quiet, origin, spikes_read::whole);
     const std::vector<std::pair<std::string, std::string>> notes = {
         {"converted_from", file},
         {"converted_from_sha256", origin.input_sha256},

@@ -5,6 +5,7 @@
 #include <rastrum/synthetic_files.hpp>
 
 #include <filesystem>
+#include <functional>
 #include <iostream>
 
 namespace rastrum::app {
@@ -68,7 +69,8 @@ int run_synth(int argc, char** argv) {
 
     nlohmann::ordered_json parameters = {{"kind", kind}, {"seed", seed}, {"duration_s", session.duration},
                                          {"gap_s", session.gap}, {"background_hz", session.background_hz}};
-    synthetic_recording synth;
+    // Made and written one unit at a time, so a recording larger than memory can be made.
+    std::function<synthetic_recording(const unit_ready&)> make;
     if (kind == "frozen-bins" || kind == "poisson") {
         const auto rates = parse_number_list(rates_text, "--rate-hz");
         const auto modulations = parse_number_list(modulation_text, "--modulation");
@@ -79,12 +81,12 @@ int run_synth(int argc, char** argv) {
             frozen_bins_spec spec{session, bin_ms, rates, modulations, refractory, seed};
             parameters["bin_ms"] = bin_ms;
             parameters["refractory"] = refractory;
-            synth = make_frozen_bins(spec);
+            make = [spec](const unit_ready& ready) { return make_frozen_bins(spec, ready); };
         } else {
             poisson_spec spec{session, rates, modulations, correlation_ms, resolution_ms, seed};
             parameters["correlation_ms"] = correlation_ms;
             parameters["resolution_ms"] = resolution_ms;
-            synth = make_poisson(spec);
+            make = [spec](const unit_ready& ready) { return make_poisson(spec, ready); };
         }
     } else {
         conditions_spec spec;
@@ -99,9 +101,9 @@ int run_synth(int argc, char** argv) {
         parameters["labels"] = spec.labels;
         parameters["trials_per_condition"] = per_condition;
         parameters["means"] = spec.means;
-        synth = make_conditions(spec);
+        make = [spec](const unit_ready& ready) { return make_conditions(spec, ready); };
     }
-    write_synthetic(synth, out, parameters);
+    make_and_write_synthetic(make, out, parameters);
     std::cerr << "wrote " << out << " and " << answers_path_for(out) << "\n";
     return 0;
 }

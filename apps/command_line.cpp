@@ -302,9 +302,10 @@ rendered_results render_results(nlohmann::ordered_json result, std::vector<curve
     return out;
 }
 
-recording read_input(const recording_source& source, bool quiet, provenance& origin) {
+recording read_input(const recording_source& source, bool quiet, provenance& origin, spikes_read how) {
     origin.input_path = source.path;
-    recording rec = read_recording(source);
+    recording rec = open_recording(source);
+    if (how == spikes_read::whole) read_all_units(rec);
     origin.input_sha256 = file_sha256(source.path);
     origin.input_read = origin_json(rec);
     const std::vector<std::string> files = source_files(source);
@@ -322,7 +323,19 @@ int analyse_and_write(int argc, char** argv, const recording_source& source, uns
     origin.started_utc = utc_now();
     origin.threads = effective_threads(threads);
     const recording rec = read_input(source, out.quiet, origin);
-    const rendered_results results = analyse(rec, origin);
+    const rendered_results results = [&] {
+        try {
+            return analyse(rec, origin);
+        } catch (const insufficient_data&) {
+            // A damaged unit the analysis did not reach is still the first thing to report (exit 3).
+            check_unread_units(rec);
+            throw;
+        }
+    }();
+    // What the loader noticed about the units read during the analysis (sorted times, no spikes).
+    if (rec.store) {
+        for (const auto& w: rec.store->warnings()) note(out.quiet, "warning: " + w);
+    }
     std::vector<std::pair<std::string, std::string>> files;
     if (out.json && *out.json != "-") files.emplace_back(*out.json, results.json);
     // One comment line of provenance, so a CSV file alone still says what made it (pandas reads

@@ -135,11 +135,17 @@ struct rendered_results {
 rendered_results render_results(nlohmann::ordered_json result, std::vector<curve_series> curves,
                                 const std::string& analysis, std::string csv, std::string table);
 
-/// Reads the recording, prints the loader's warnings (unless quiet) and fills the input part of
-/// `origin`: path, sha256 of every file read, and what was read from where.
-recording read_input(const recording_source& source, bool quiet, provenance& origin);
+/// How read_input reads the units' spike times.
+enum class spikes_read { on_demand, whole };
 
-/// The part every analysis command shares: reads the recording (loader warnings to stderr), fills
+/// Opens the recording (its units read on demand by `spikes(u)`, or all of them now), prints the
+/// loader's warnings so far (unless quiet) and fills the input part of `origin`: path, sha256 of
+/// every file read, and what was read from where.
+recording read_input(const recording_source& source, bool quiet, provenance& origin,
+                     spikes_read how = spikes_read::on_demand);
+
+/// The part every analysis command shares: opens the recording (loader warnings to stderr, those of
+/// units read during the analysis after it), fills
 /// the provenance, lets `analyse` run and render (it sets `finished_utc`), writes the outputs all
 /// together and atomically, and prints the table or the JSON.
 int analyse_and_write(int argc, char** argv, const recording_source& source, unsigned threads, const output_choice& out,

@@ -1,3 +1,4 @@
+#include <rastrum/aligned_units.hpp>
 #include <rastrum/direct_analysis.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/format.hpp>
@@ -45,11 +46,11 @@ count spikes_before(const std::vector<std::vector<seconds>>& aligned, seconds en
 
 std::vector<direct_record> run_direct(const recording& rec, const direct_request& request) {
     check_direct_request(request);
-    std::vector<const unit_spikes*> units;
+    std::vector<std::size_t> units;
     if (request.units.empty()) {
-        for (const auto& u: rec.units) units.push_back(&u);
+        for (std::size_t u = 0; u < rec.units.size(); ++u) units.push_back(u);
     } else {
-        for (const auto& id: request.units) units.push_back(&rec.unit(id));
+        for (const auto& id: request.units) units.push_back(rec.unit_index(id));
     }
     const std::vector<std::size_t> trials = select_trials(rec, request.stimulus, request.trials);
     if (trials.size() < 2) {
@@ -70,25 +71,33 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
         for (const auto& [label, n]: stimulus_labels(rec)) pooled_labels.push_back(label);
     }
 
-    std::vector<std::vector<std::vector<seconds>>> aligned(units.size());
-    for (std::size_t u = 0; u < units.size(); ++u) aligned[u] = align_to_trials(units[u]->spike_times, rec, trials);
-
     const std::size_t n_bins = request.bin_ms.size();
+    // Each unit is read when its first bin width starts and let go after its last: tasks of one unit
+    // are adjacent, so about one unit per thread is held, not the recording.
+    std::vector<std::size_t> uses(rec.units.size(), 0);
+    for (const std::size_t u: units) uses[u] += n_bins;
+    aligned_units aligned(rec, trials, uses);
+
     std::vector<direct_record> records(units.size() * n_bins);
     parallel_for(records.size(), request.threads, [&](std::size_t task) {
-        const std::size_t u = task / n_bins;
+        const std::size_t u = units[task / n_bins];
         const double bin_ms = request.bin_ms[task % n_bins];
         const seconds bin_width = bin_ms / 1000.0;
         direct_record& r = records[task];
-        r.unit = units[u]->id;
+        r.unit = rec.units[u].id;
         r.stimulus = request.stimulus;
         r.bin_ms = bin_ms;
         r.trials = trials.size();
         r.trial_duration = duration;
         const std::size_t bins = whole_bins(duration, bin_width);
-        const letter_matrix letters = bin_spikes(aligned[u], bin_width, bins, request.binary);
         const seconds analysed = static_cast<double>(bins) * bin_width;
-        const count spikes = spikes_before(aligned[u], analysed);
+        letter_matrix letters;
+        count spikes = 0;
+        {  // the spike times are needed only until they are letters
+            const aligned_units::hold unit(aligned, u);
+            letters = bin_spikes(unit.spikes(), bin_width, bins, request.binary);
+            spikes = spikes_before(unit.spikes(), analysed);
+        }
         r.mean_rate_hz = static_cast<double>(spikes) / (static_cast<double>(trials.size()) * analysed);
 
         direct_settings settings = request.settings;

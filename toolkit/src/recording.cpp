@@ -109,12 +109,75 @@ std::pair<std::size_t, std::size_t> spikes_in_trial(const std::vector<seconds>& 
 
 }  // namespace
 
-const unit_spikes& recording::unit(const std::string& id) const {
-    for (const auto& u: units) {
-        if (u.id == id) return u;
+std::size_t recording::unit_index(const std::string& id) const {
+    for (std::size_t u = 0; u < units.size(); ++u) {
+        if (units[u].id == id) return u;
     }
     throw usage_error("no unit " + quoted(id) + " in " + source + "; units present: " +
                       listing(units, [](const unit_spikes& u) { return u.id; }));
+}
+
+const unit_spikes& recording::unit(const std::string& id) const {
+    if (store) throw internal_error("recording::unit: the spike times of " + source + " are read on demand; use spikes()");
+    return units[unit_index(id)];
+}
+
+shared_spikes recording::spikes(std::size_t u) const {
+    if (u >= units.size()) throw internal_error("recording::spikes: no unit " + std::to_string(u));
+    if (store) return std::make_shared<const std::vector<seconds>>(store->read(u));
+    // Held in the recording: shared without an owner, valid as long as the recording is.
+    return shared_spikes(shared_spikes(), &units[u].spike_times);
+}
+
+std::size_t recording::spike_count(std::size_t u) const {
+    return store ? store->spike_count(u) : units.at(u).spike_times.size();
+}
+
+std::vector<std::string> recording::all_warnings() const {
+    std::vector<std::string> all = warnings;
+    if (store) {
+        for (auto& w: store->warnings()) all.push_back(std::move(w));
+    }
+    return all;
+}
+
+unit_store::unit_store(std::unique_ptr<unit_loader> loader, std::size_t units):
+    loader_(std::move(loader)), warnings_(units) {}
+
+std::vector<seconds> unit_store::read(std::size_t u) {
+    std::lock_guard<std::mutex> lock(mutex_);
+    std::vector<std::string> noticed;
+    std::vector<seconds> times = loader_->load(u, noticed);
+    if (!warnings_.at(u)) warnings_[u] = std::move(noticed);
+    return times;
+}
+
+std::vector<std::string> unit_store::warnings() const {
+    std::lock_guard<std::mutex> lock(mutex_);
+    std::vector<std::string> all;
+    for (const auto& w: warnings_) {
+        if (w) all.insert(all.end(), w->begin(), w->end());
+    }
+    return all;
+}
+
+bool unit_store::was_read(std::size_t u) const {
+    std::lock_guard<std::mutex> lock(mutex_);
+    return warnings_.at(u).has_value();
+}
+
+void check_unread_units(const recording& rec) {
+    if (!rec.store) return;
+    for (std::size_t u = 0; u < rec.units.size(); ++u) {
+        if (!rec.store->was_read(u)) rec.store->read(u);
+    }
+}
+
+void read_all_units(recording& rec) {
+    if (!rec.store) return;
+    for (std::size_t u = 0; u < rec.units.size(); ++u) rec.units[u].spike_times = rec.store->read(u);
+    rec.warnings = rec.all_warnings();
+    rec.store.reset();
 }
 
 place recording_places::units() const { return {rec_.source, "/units"}; }

@@ -1,3 +1,4 @@
+#include <rastrum/aligned_units.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/binning.hpp>
 #include <rastrum/format.hpp>
@@ -202,24 +203,24 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
     refuse_repeats(q.stimuli, "--stimuli");
     // Groups: each single unit asked for (every unit when neither units nor populations are given),
     // then each population.
-    std::vector<std::vector<const unit_spikes*>> groups;
+    std::vector<std::vector<std::size_t>> groups;  // indices of units in rec.units
     if (q.units.empty() && q.populations.empty()) {
-        for (const auto& u: rec.units) groups.push_back({&u});
+        for (std::size_t u = 0; u < rec.units.size(); ++u) groups.push_back({u});
     }
-    for (const auto& id: q.units) groups.push_back({&rec.unit(id)});
+    for (const auto& id: q.units) groups.push_back({rec.unit_index(id)});
     // A population's members are analysed alone too, so its synergy can be read against them.
     for (const auto& members: q.populations) {
         if (members.size() < 2) throw usage_error("--population needs at least two units");
         refuse_repeats(members, "--population");
         for (const auto& id: members) {
-            const unit_spikes* u = &rec.unit(id);
+            const std::size_t u = rec.unit_index(id);
             const bool listed = std::any_of(groups.begin(), groups.end(), [&](const auto& g) { return g.size() == 1 && g[0] == u; });
             if (!listed) groups.push_back({u});
         }
     }
     for (const auto& members: q.populations) {
-        std::vector<const unit_spikes*> g;
-        for (const auto& id: members) g.push_back(&rec.unit(id));
+        std::vector<std::size_t> g;
+        for (const auto& id: members) g.push_back(rec.unit_index(id));
         groups.push_back(g);
     }
     // Conditions: the chosen labels, each keeping at least two trials.
@@ -279,21 +280,22 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         stimulus_entropy -= p * std::log2(p);
     }
 
-    std::map<const unit_spikes*, std::vector<std::vector<seconds>>> aligned;
-    for (const auto& g: groups) {
-        for (const unit_spikes* u: g) {
-            if (!aligned.count(u)) aligned[u] = align_to_trials(u->spike_times, rec, trials);
-        }
-    }
     const auto windows = windows_of(q);
+    // Each unit is read when the first task needing it starts and let go after the last one: a
+    // single unit's windows are adjacent tasks, and a population holds its members together.
+    std::vector<std::size_t> uses(rec.units.size(), 0);
+    for (const auto& g: groups) {
+        for (const std::size_t u: g) uses[u] += windows.size();
+    }
+    aligned_units aligned(rec, trials, uses);
     std::vector<stiminfo_record> records(groups.size() * windows.size());
     parallel_for(records.size(), q.threads, [&](std::size_t task) {
         const auto& group = groups[task / windows.size()];
         const std::size_t w = task % windows.size();
         stiminfo_record& r = records[task];
-        for (const unit_spikes* u: group) {
-            r.unit += (r.unit.empty() ? "" : "+") + u->id;
-            r.units.push_back(u->id);
+        for (const std::size_t u: group) {
+            r.unit += (r.unit.empty() ? "" : "+") + rec.units[u].id;
+            r.units.push_back(rec.units[u].id);
         }
         r.window = windows[w];
         r.trials = trials.size();
@@ -306,8 +308,9 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         spec.window_stop = windows[w].second;
         std::vector<labelled_responses> members;
         double spikes = 0;
-        for (const unit_spikes* u: group) {
-            const trial_responses resp = code_responses(aligned.at(u), spec);
+        for (const std::size_t u: group) {
+            const aligned_units::hold unit(aligned, u);
+            const trial_responses resp = code_responses(unit.spikes(), spec);
             members.push_back({condition, resp.codes, kept.size(), resp.alphabet});
             for (count c: resp.spikes) spikes += static_cast<double>(c);
         }

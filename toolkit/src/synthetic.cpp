@@ -82,6 +82,13 @@ synthetic_recording start_recording(const char* kind, const session_shape& sessi
     return out;
 }
 
+/// Unit u is complete: its times sorted (as finish() would sort them) and handed to `ready`.
+void unit_done(recording& rec, std::size_t u, const unit_ready& ready) {
+    auto& times = rec.units[u].spike_times;
+    std::sort(times.begin(), times.end());
+    if (ready) ready(rec, u);
+}
+
 void finish(recording& rec) {
     for (auto& u: rec.units) std::sort(u.spike_times.begin(), u.spike_times.end());
     validate(rec);
@@ -183,7 +190,7 @@ double poisson_entropy_bits(double mean, std::vector<double>* pmf_out, std::size
 
 }  // namespace
 
-synthetic_recording make_frozen_bins(const frozen_bins_spec& spec) {
+synthetic_recording make_frozen_bins(const frozen_bins_spec& spec, const unit_ready& ready) {
     check_session(spec.session);
     if (!(spec.bin_ms > 0)) throw usage_error("--bin-ms must be positive");
     if (spec.rates_hz.empty()) throw usage_error("--rate-hz: give at least one rate");
@@ -240,6 +247,7 @@ synthetic_recording make_frozen_bins(const frozen_bins_spec& spec) {
             truth.by_letters["info_bits"].push_back(total_L - noise_L);
         }
         out.truth.push_back(std::move(truth));
+        unit_done(out.rec, u, ready);
     }
     finish(out.rec);
     return out;
@@ -256,7 +264,7 @@ double single_spike_information(const std::vector<double>& rate) {
     return sum / static_cast<double>(rate.size());
 }
 
-synthetic_recording make_poisson(const poisson_spec& spec) {
+synthetic_recording make_poisson(const poisson_spec& spec, const unit_ready& ready) {
     check_session(spec.session);
     if (!(spec.correlation_ms > 0) || !(spec.resolution_ms > 0)) {
         throw usage_error("--correlation-ms and --resolution-ms must be positive");
@@ -329,6 +337,7 @@ synthetic_recording make_poisson(const poisson_spec& spec) {
             truth.values[key] = (total - noise) / (bin_ms / 1000);
         }
         out.truth.push_back(std::move(truth));
+        unit_done(out.rec, u, ready);
     }
     finish(out.rec);
     return out;
@@ -353,7 +362,7 @@ double poisson_count_information(const std::vector<double>& means) {
     return total - noise / k;
 }
 
-synthetic_recording make_conditions(const conditions_spec& spec) {
+synthetic_recording make_conditions(const conditions_spec& spec, const unit_ready& ready) {
     check_session(spec.session);
     if (spec.labels.empty() || spec.trials_per_condition < 1) {
         throw usage_error("conditions need at least one label and one trial per condition");
@@ -388,6 +397,7 @@ synthetic_recording make_conditions(const conditions_spec& spec) {
         truth.values["count_info_bits"] = poisson_count_information(spec.means[u]);
         truth.values["stimulus_entropy_bits"] = std::log2(static_cast<double>(spec.labels.size()));
         out.truth.push_back(std::move(truth));
+        unit_done(out.rec, u, ready);
     }
     finish(out.rec);
     return out;

@@ -4,6 +4,9 @@
 #include <rastrum/types.hpp>
 
 #include <cstddef>
+#include <functional>
+#include <memory>
+#include <mutex>
 #include <optional>
 #include <string>
 #include <vector>
@@ -31,22 +34,80 @@ struct unit_spikes {
     std::vector<seconds> spike_times;  // session clock, ascending (loaders sort and warn)
 };
 
+/// Reads one unit's spike times at a time from the file a recording was opened from
+/// (notes/recording-layout.md, "Reading unit by unit"). One per format; `unit_store` calls it one
+/// call at a time.
+class unit_loader {
+public:
+    virtual ~unit_loader() = default;
+    /// How many spike times unit u has in the file, known when the recording was opened.
+    virtual std::size_t spike_count(std::size_t u) const = 0;
+    /// Unit u's spike times as the model wants them: every time checked finite in the file's order
+    /// (input_error naming the file and the object, as the whole-file read does), then ascending
+    /// (sorted, with a warning). What it notices about the unit is appended to `warnings`.
+    virtual std::vector<seconds> load(std::size_t u, std::vector<std::string>& warnings) = 0;
+};
+
+/// The units of a recording opened for reading on demand: reads go through the loader one at a
+/// time (HDF5 files are read serially), from any thread. Keeps the warnings of every unit read.
+class unit_store {
+public:
+    unit_store(std::unique_ptr<unit_loader> loader, std::size_t units);
+    std::size_t spike_count(std::size_t u) const { return loader_->spike_count(u); }
+    /// Unit u's spike times, read now; the unit's warnings are kept the first time it is read.
+    std::vector<seconds> read(std::size_t u);
+    /// The warnings of the units read so far, in the recording's order of units.
+    std::vector<std::string> warnings() const;
+    /// Whether unit u has been read (and so passed its checks) at least once.
+    bool was_read(std::size_t u) const;
+
+private:
+    std::unique_ptr<unit_loader> loader_;
+    mutable std::mutex mutex_;
+    std::vector<std::optional<std::vector<std::string>>> warnings_;  // per unit, once read
+};
+
+/// Unit u's spike times, shared by whoever needs them while they are needed.
+using shared_spikes = std::shared_ptr<const std::vector<seconds>>;
+
 struct recording {
     std::string source;                      // where it came from (a path), for messages
-    std::vector<unit_spikes> units;
+    std::vector<unit_spikes> units;          // ids; the spike times too unless `on_demand()`
     std::vector<seconds> trial_start;        // ascending, trials do not overlap
     std::vector<seconds> trial_stop;         // trial_stop[k] > trial_start[k]
     std::vector<std::string> stimulus;       // empty, or one label per trial (integers as decimal text)
     std::vector<std::string> warnings;       // what the loader repaired or noticed (sorted spikes, empty units)
     recording_origin origin;
+    /// Set when the spike times stay in the file until asked for (open_recording): then every
+    /// units[u].spike_times is empty and `spikes(u)` reads them.
+    std::shared_ptr<unit_store> store;
+
+    bool on_demand() const { return store != nullptr; }
+    /// Spike times of unit u: those held, or read now from the file (from any thread).
+    shared_spikes spikes(std::size_t u) const;
+    std::size_t spike_count(std::size_t u) const;
+    /// Every warning so far: the loader's at opening, then those of each unit read on demand.
+    std::vector<std::string> all_warnings() const;
+    /// Index of the unit with this id. Throws usage_error naming the ids that exist when there is none.
+    std::size_t unit_index(const std::string& id) const;
 
     std::size_t trial_count() const { return trial_start.size(); }
     bool has_stimulus() const { return !stimulus.empty(); }
     /// Where the labels are (or would be), for messages: `origin.labels` in `source` unless it names a file.
     place labels_place() const { return {origin.labels.file.empty() ? source : origin.labels.file, origin.labels.object}; }
-    /// The unit with this id. Throws usage_error naming the ids that exist when there is none.
+    /// The unit with this id, spike times included; internal_error for a recording read on demand.
+    /// Throws usage_error naming the ids that exist when there is none.
     const unit_spikes& unit(const std::string& id) const;
 };
+
+/// Reads every unit of a recording opened on demand into `rec.units` (in order, each unit's warnings
+/// added to rec.warnings as it is read) and drops the store; a recording held whole is left as it is.
+void read_all_units(recording& rec);
+
+/// Reads, and lets go, every unit of a recording opened on demand that has not been read yet, one at
+/// a time, so that a damaged unit is reported (input_error) even when the analysis stopped before it:
+/// input errors then come before a shortage of data, as when the whole file was read first.
+void check_unread_units(const recording& rec);
 
 /// Where the parts of a recording sit in the file(s) it came from, so that validate() can name
 /// them in the source's own terms (an NWB dataset, a MATLAB variable, a CSV line). The default

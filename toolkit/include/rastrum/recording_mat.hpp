@@ -22,6 +22,11 @@ namespace rastrum {
 /// save instead.
 recording read_recording_mat(const std::string& path, const mat_choice& choice);
 
+/// The same, opened for reading unit by unit: every variable and each cell's array checked (class,
+/// shape, size) at opening; a cell's times read when `rec.spikes(u)` asks, with the same checks and
+/// messages.
+recording open_recording_mat(const std::string& path, const mat_choice& choice);
+
 /// "spikes (cell 1x3), ts (double 40x1), ...": the variables of a MAT-file, for survey and messages.
 std::vector<std::pair<std::string, std::string>> mat_variables(const std::string& path);
 

@@ -21,6 +21,12 @@ namespace rastrum {
 recording read_recording_nwb(const std::string& path, const nwb_choice& choice = {},
                              const std::optional<std::string>& stimulus_column = std::nullopt);
 
+/// The same, opened for reading unit by unit: everything but the spike times read and checked
+/// (spike_times' type and size against spike_times_index included); unit u's times are read as a
+/// hyperslab of /units/spike_times when `rec.spikes(u)` asks, with the same checks and messages.
+recording open_recording_nwb(const std::string& path, const nwb_choice& choice = {},
+                             const std::optional<std::string>& stimulus_column = std::nullopt);
+
 /// A table of an NWB file and its columns, for survey: which tables and columns --intervals,
 /// --stimulus-column and --unit-column can name.
 struct nwb_table {

@@ -49,6 +49,13 @@ struct recording_source {
 /// object, expected, found) for anything unreadable or invalid.
 recording read_recording(const recording_source& source);
 
+/// The same recording opened for reading unit by unit (notes/recording-layout.md, "Reading unit by
+/// unit"): ids, spike counts, trials and labels read and checked now, every unit's spike times when
+/// `spikes(u)` asks, with the same checks and messages (an input_error then). Native, NWB and MAT
+/// files are read so (`on_demand()`); a text recording is read whole. read_recording is this
+/// followed by read_all_units.
+recording open_recording(const recording_source& source);
+
 /// A table, or the variables, of a file, with what each column or variable is.
 struct offered_group {
     std::string name;                                        // "/intervals/trials", "variables", a CSV path

@@ -4,6 +4,7 @@
 #include <rastrum/recording.hpp>
 
 #include <cstdint>
+#include <functional>
 #include <map>
 #include <string>
 #include <vector>
@@ -72,9 +73,15 @@ struct synthetic_recording {
     std::vector<unit_truth> truth;
 };
 
-synthetic_recording make_frozen_bins(const frozen_bins_spec& spec);
-synthetic_recording make_poisson(const poisson_spec& spec);
-synthetic_recording make_conditions(const conditions_spec& spec);
+/// Told about each unit as soon as its spike times are final (sorted), with the recording so far
+/// (trials and labels laid out); it may take rec.units[u].spike_times away (write them and let them
+/// go), so that a recording larger than memory can be made one unit at a time. The random draws,
+/// and so the recording, are the same with or without it.
+using unit_ready = std::function<void(recording& rec, std::size_t u)>;
+
+synthetic_recording make_frozen_bins(const frozen_bins_spec& spec, const unit_ready& ready = {});
+synthetic_recording make_poisson(const poisson_spec& spec, const unit_ready& ready = {});
+synthetic_recording make_conditions(const conditions_spec& spec, const unit_ready& ready = {});
 
 /// Binary entropy -p log2 p - (1-p) log2 (1-p), in bits.
 double binary_entropy(double p);

@@ -4,6 +4,7 @@
 #include <rastrum/synthetic.hpp>
 
 #include <nlohmann/json.hpp>
+#include <functional>
 #include <string>
 
 namespace rastrum {
@@ -15,5 +16,11 @@ nlohmann::ordered_json synthetic_answers_json(const synthetic_recording& synth, 
 /// Writes both files; neither is left changed when either cannot be written.
 void write_synthetic(const synthetic_recording& synth, const std::string& recording_path,
                      const nlohmann::ordered_json& parameters);
+
+/// The same for a recording made by `make` (make_frozen_bins, make_poisson or make_conditions with
+/// the unit_ready it is given), each unit written as soon as it is made and then let go, so that
+/// memory holds one unit's spikes (and the spikes between trials), not the recording.
+void make_and_write_synthetic(const std::function<synthetic_recording(const unit_ready&)>& make,
+                              const std::string& recording_path, const nlohmann::ordered_json& parameters);
 
 }  // namespace rastrum

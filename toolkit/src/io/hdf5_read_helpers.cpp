@@ -133,7 +133,9 @@ std::vector<std::string> decode_strings(const H5::DataType& file_type, std::size
 void quiet_library() { H5::Exception::dontPrint(); }
 
 namespace {
-int captures_alive = 0;  // serial HDF5 is single-threaded, so a plain counter suffices
+// Per thread: a thread-safe HDF5 keeps one error stack, and one automatic handler, per thread, and
+// units read on demand may be read from any worker thread (one at a time).
+thread_local int captures_alive = 0;
 }  // namespace
 
 error_capture::error_capture() {
@@ -400,15 +402,51 @@ std::vector<std::uint64_t> source::dimensions(const std::string& object) {
     return guard(object, expected, [&] { return checked_dimensions(ds, object, expected); });
 }
 
+namespace {
+std::string float_expected(shape accepted) {
+    return accepted == shape::one_dimensional ? "a 1-D float64 dataset (any float type)" : "a vector of floats";
+}
+}  // namespace
+
+std::size_t source::float_extent(const H5::DataSet& ds, const std::string& object, shape accepted) {
+    const std::string expected = float_expected(accepted);
+    const H5::DataType type = ds.getDataType();
+    if (type.getClass() != H5T_FLOAT) throw input_error(path_, object, expected, of_type(type));
+    return checked_extent(ds, object, expected, accepted).elements;
+}
+
+std::size_t source::float64_count(const std::string& object, shape accepted) {
+    const std::string expected = float_expected(accepted);
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] { return float_extent(ds, object, accepted); });
+}
+
 std::vector<double> source::read_float64(const std::string& object, shape accepted) {
-    const std::string expected = accepted == shape::one_dimensional ? "a 1-D float64 dataset (any float type)"
-                                                                      : "a vector of floats";
+    const std::string expected = float_expected(accepted);
     const H5::DataSet ds = dataset(object, expected);
     return guard(object, expected, [&] {
-        const H5::DataType type = ds.getDataType();
-        if (type.getClass() != H5T_FLOAT) throw input_error(path_, object, expected, of_type(type));
-        std::vector<double> values(checked_extent(ds, object, expected, accepted).elements);
+        std::vector<double> values(float_extent(ds, object, accepted));
         if (!values.empty()) ds.read(values.data(), H5::PredType::NATIVE_DOUBLE);
+        return values;
+    });
+}
+
+std::vector<double> source::read_float64_range(const std::string& object, std::size_t first, std::size_t count) {
+    const std::string expected = float_expected(shape::one_dimensional);
+    const H5::DataSet ds = dataset(object, expected);
+    return guard(object, expected, [&] {
+        const std::size_t n = float_extent(ds, object, shape::one_dimensional);
+        if (first > n || count > n - first) {
+            throw internal_error("read_float64_range: elements " + std::to_string(first) + " + " + std::to_string(count) +
+                                 " of " + object + ", which has " + std::to_string(n));
+        }
+        std::vector<double> values(count);
+        if (count == 0) return values;
+        const hsize_t start[1] = {first}, size[1] = {count};
+        H5::DataSpace in_file = ds.getSpace();
+        in_file.selectHyperslab(H5S_SELECT_SET, size, start);
+        const H5::DataSpace in_memory(1, size);
+        ds.read(values.data(), H5::PredType::NATIVE_DOUBLE, in_memory, in_file);
         return values;
     });
 }

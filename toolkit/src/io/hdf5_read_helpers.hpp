@@ -114,6 +114,10 @@ public:
 
     /// A dataset of any float class, converted to double.
     std::vector<double> read_float64(const std::string& object, shape accepted = shape::one_dimensional);
+    /// How many elements read_float64 would read, with every check it makes, reading none of them.
+    std::size_t float64_count(const std::string& object, shape accepted = shape::one_dimensional);
+    /// Elements [first, first + count) of a 1-D dataset of any float class (a hyperslab), as double.
+    std::vector<double> read_float64_range(const std::string& object, std::size_t first, std::size_t count);
     /// A dataset of any integer class that fits in int64.
     std::vector<std::int64_t> read_int64(const std::string& object, shape accepted = shape::one_dimensional);
     /// A one-dimensional dataset of strings, variable- or fixed-length, each checked to be UTF-8.
@@ -143,6 +147,8 @@ private:
     // more bytes than the file holds, or 1032 times that when filtered).
     std::vector<std::uint64_t> checked_dimensions(const H5::DataSet& dataset, const std::string& object,
                                                   const std::string& expected);
+    // The element count of a float dataset, its class and shape checked.
+    std::size_t float_extent(const H5::DataSet& ds, const std::string& object, shape accepted);
     std::vector<std::string> read_enum_names(const H5::DataSet& dataset, std::size_t elements, const std::string& object);
     std::vector<std::string> read_string_elements(const H5::DataSet& dataset, const H5::StrType& type,
                                                   std::size_t elements, const std::string& object);

@@ -80,16 +80,23 @@ std::optional<recording_format> format_named(const std::string& name) {
     return std::nullopt;
 }
 
-recording read_recording(const recording_source& source) {
+recording open_recording(const recording_source& source) {
     const detected_format found = source_format(source);
     check_options(source, found.format, found.detail);
     switch (found.format) {
-    case recording_format::native: return read_recording_hdf5(source.path);
-    case recording_format::nwb: return read_recording_nwb(source.path, source.nwb, source.stimulus_column);
-    case recording_format::mat: return read_recording_mat(source.path, source.mat);
+    case recording_format::native: return open_recording_hdf5(source.path);
+    case recording_format::nwb: return open_recording_nwb(source.path, source.nwb, source.stimulus_column);
+    case recording_format::mat: return open_recording_mat(source.path, source.mat);
+    // Text must be parsed whole to find any unit's rows, so it is read whole (notes/recording-layout.md).
     case recording_format::text: return read_recording_text(source.path, *source.trials_csv, source.stimulus_column);
     }
-    throw internal_error("read_recording: unknown format");
+    throw internal_error("open_recording: unknown format");
+}
+
+recording read_recording(const recording_source& source) {
+    recording rec = open_recording(source);
+    read_all_units(rec);
+    return rec;
 }
 
 std::vector<std::string> source_files(const recording_source& source) {

@@ -4,8 +4,12 @@
 #include <rastrum/errors.hpp>
 #include <rastrum/recording_hdf5.hpp>
 
+#include "loader_steps.hpp"
+
 #include <algorithm>
+#include <cmath>
 #include <cstdint>
+#include <memory>
 
 namespace rastrum {
 
@@ -13,16 +17,10 @@ namespace {
 
 // Names and labels are stored as UTF-8 and read back through the same checks the reader applies,
 // so anything the reader would refuse is refused here, before a file exists.
+void check_unit_id(const std::string& id, const std::string& source);
+
 void check_writable(const recording& rec) {
-    for (const auto& u: rec.units) {
-        const bool bad_name = u.id == "." || u.id.find('/') != std::string::npos ||
-                              u.id.find('\0') != std::string::npos;
-        if (bad_name || hdf5::invalid_utf8_offset(u.id) != std::string::npos) {
-            throw input_error(rec.source, "unit \"" + u.id + "\"",
-                              "unit ids that can be HDF5 group names in the native layout (UTF-8, no '/', no NUL, not \".\")",
-                              "this id");
-        }
-    }
+    for (const auto& u: rec.units) check_unit_id(u.id, rec.source);
     for (std::size_t k = 0; k < rec.stimulus.size(); ++k) {
         const std::string& s = rec.stimulus[k];
         if (s.find('\0') != std::string::npos || hdf5::invalid_utf8_offset(s) != std::string::npos) {
@@ -73,48 +71,104 @@ void text_attribute(const H5::H5File& file, const std::string& name, const std::
     file.createAttribute(name, text, H5::DataSpace(H5S_SCALAR)).write(text, stored.data());
 }
 
-// Every object opened here is closed on return, so the caller's close() really closes the file.
-void write_contents(const H5::H5File& file, const recording& rec,
-                    const std::vector<std::pair<std::string, std::string>>& notes) {
+void root_attributes(const H5::H5File& file, const std::vector<std::pair<std::string, std::string>>& notes) {
     const H5::DataSpace scalar(H5S_SCALAR);
     text_attribute(file, "layout", "spike-recording");
     const std::int64_t version = 1;
     file.createAttribute("layout_version", H5::PredType::STD_I64LE, scalar)
         .write(H5::PredType::NATIVE_INT64, &version);
     for (const auto& [name, value]: notes) text_attribute(file, name, value);
+}
 
-    const H5::LinkCreatPropList names = utf8_names();
-    const H5::Group units = file.createGroup("units", names);
-    for (const auto& u: rec.units) write_times(units.createGroup(u.id, names), "spike_times", u.spike_times);
+// Unit ids are group names; check_writable's rule for one id.
+void check_unit_id(const std::string& id, const std::string& source) {
+    const bool bad_name = id == "." || id.find('/') != std::string::npos || id.find('\0') != std::string::npos;
+    if (bad_name || hdf5::invalid_utf8_offset(id) != std::string::npos) {
+        throw input_error(source, "unit \"" + id + "\"",
+                          "unit ids that can be HDF5 group names in the native layout (UTF-8, no '/', no NUL, not \".\")",
+                          "this id");
+    }
+}
 
-    const H5::Group trials = file.createGroup("trials", names);
-    write_times(trials, "start_time", rec.trial_start);
-    write_times(trials, "stop_time", rec.trial_stop);
-    if (rec.has_stimulus()) write_labels(trials, "stimulus", rec.stimulus);
+// validate()'s rule for one unit's times, named as the file will name them.
+void check_times(const std::string& id, const std::vector<seconds>& times, const std::string& source) {
+    for (std::size_t i = 0; i < times.size(); ++i) {
+        if (!std::isfinite(times[i]) || (i > 0 && times[i] < times[i - 1])) {
+            throw input_error(source, hdf5::element_path("/units/" + id + "/spike_times", i),
+                              "finite spike times in ascending order", exact_number(times[i]));
+        }
+    }
 }
 
 }  // namespace
+
+struct recording_hdf5_writer::state {
+    hdf5::error_capture capture;
+    atomic_file out;
+    H5::H5File file;
+    H5::Group units;
+    explicit state(const std::string& path): out(path) {}
+};
+
+recording_hdf5_writer::recording_hdf5_writer(const std::string& path,
+                                             const std::vector<std::pair<std::string, std::string>>& notes):
+    state_(std::make_unique<state>(path)) {
+    guarded([&] {
+        // The 1.8 file format checksums every piece of metadata, so a file damaged later is
+        // refused by the library with a checksum error instead of being misread (HDF5 reading
+        // corrupt unchecksummed headers can even crash). Readable by every HDF5 since 1.8.
+        H5::FileAccPropList access;
+        access.setLibverBounds(H5F_LIBVER_V18, H5F_LIBVER_LATEST);
+        state_->file = H5::H5File(state_->out.temporary_path(), H5F_ACC_TRUNC, H5::FileCreatPropList::DEFAULT, access);
+        root_attributes(state_->file, notes);
+        state_->units = state_->file.createGroup("units", utf8_names());
+    });
+}
+
+recording_hdf5_writer::~recording_hdf5_writer() = default;
+
+template <class F>
+void recording_hdf5_writer::guarded(F&& f) {
+    try {
+        f();
+    } catch (const H5::Exception& e) {
+        throw error("cannot write " + state_->out.final_path() + ": " + hdf5::library_message(e));
+    }
+}
+
+void recording_hdf5_writer::add_unit(const std::string& id, const std::vector<seconds>& spike_times,
+                                     const std::string& source) {
+    check_unit_id(id, source);
+    check_times(id, spike_times, source);
+    guarded([&] { write_times(state_->units.createGroup(id, utf8_names()), "spike_times", spike_times); });
+}
+
+void recording_hdf5_writer::finish(const recording& rec) {
+    // A file that the reader would refuse is not worth keeping: ids and trials as validate() sees them.
+    validate(rec);
+    check_writable(rec);
+    guarded([&] {
+        {
+            const H5::Group trials = state_->file.createGroup("trials", utf8_names());
+            write_times(trials, "start_time", rec.trial_start);
+            write_times(trials, "stop_time", rec.trial_stop);
+            if (rec.has_stimulus()) write_labels(trials, "stimulus", rec.stimulus);
+        }
+        state_->units.close();
+    });
+    // Every object opened here is closed by now, so close() really closes the file.
+    guarded([&] { state_->file.close(); });
+    state_->out.commit();
+}
 
 void write_recording_hdf5(const recording& rec, const std::string& path,
                           const std::vector<std::pair<std::string, std::string>>& notes) {
     // A file that the reader would refuse is not worth writing.
     validate(rec);
     check_writable(rec);
-    const hdf5::error_capture capture;
-    atomic_file out(path);
-    try {
-        // The 1.8 file format checksums every piece of metadata, so a file damaged later is
-        // refused by the library with a checksum error instead of being misread (HDF5 reading
-        // corrupt unchecksummed headers can even crash). Readable by every HDF5 since 1.8.
-        H5::FileAccPropList access;
-        access.setLibverBounds(H5F_LIBVER_V18, H5F_LIBVER_LATEST);
-        H5::H5File file(out.temporary_path(), H5F_ACC_TRUNC, H5::FileCreatPropList::DEFAULT, access);
-        write_contents(file, rec, notes);
-        file.close();
-    } catch (const H5::Exception& e) {
-        throw error("cannot write " + path + ": " + hdf5::library_message(e));
-    }
-    out.commit();
+    recording_hdf5_writer writer(path, notes);
+    for (std::size_t u = 0; u < rec.units.size(); ++u) writer.add_unit(rec.units[u].id, *rec.spikes(u), rec.source);
+    writer.finish(rec);
 }
 
 }  // namespace rastrum

@@ -5,6 +5,7 @@
 #include <rastrum/recording_mat.hpp>
 
 #include <algorithm>
+#include <memory>
 #include <unordered_map>
 
 namespace rastrum {
@@ -126,7 +127,8 @@ void require_readable(const std::string& file, const matlab_array& a, const std:
 
 const char* times_expected = "a double vector of times in seconds";
 
-std::vector<double> read_times(hdf5::source& src, const matlab_array& a) {
+// How many times `a` holds, every check of read_times made but the values unread.
+std::size_t times_count(hdf5::source& src, const matlab_array& a) {
     require_readable(src.path(), a, times_expected);
     if (!is_float_class(a.matlab_class)) {
         const std::string advice = is_integer_class(a.matlab_class) || a.matlab_class == "logical"
@@ -134,9 +136,38 @@ std::vector<double> read_times(hdf5::source& src, const matlab_array& a) {
                                        : "";
         throw input_error(src.path(), a.name, times_expected, described(a) + advice);
     }
-    if (a.empty) return {};
+    if (a.empty) return 0;
+    return as_matlab(a, [&] { return src.float64_count(a.path, hdf5::shape::matlab_vector); });
+}
+
+std::vector<double> read_times(hdf5::source& src, const matlab_array& a) {
+    if (times_count(src, a) == 0) return {};
     return as_matlab(a, [&] { return src.read_float64(a.path, hdf5::shape::matlab_vector); });
 }
+
+// Unit u is the array one cell of the spikes variable refers to, read when asked.
+class mat_loader: public unit_loader {
+public:
+    mat_loader(std::shared_ptr<hdf5::source> src, std::vector<std::string> ids, std::vector<matlab_array> cells):
+        src_(std::move(src)), ids_(std::move(ids)), cells_(std::move(cells)) {
+        for (const auto& cell: cells_) counts_.push_back(times_count(*src_, cell));
+    }
+    std::size_t spike_count(std::size_t u) const override { return counts_[u]; }
+    std::vector<seconds> load(std::size_t u, std::vector<std::string>& warnings) override {
+        const hdf5::error_capture capture;  // on the thread that reads
+        const matlab_array& cell = cells_[u];
+        std::vector<seconds> times = read_times(*src_, cell);
+        settle_spike_times(times, ids_[u], [&](std::size_t k) { return place{src_->path(), matlab_element(cell.name, k)}; },
+                           warnings);
+        return times;
+    }
+
+private:
+    std::shared_ptr<hdf5::source> src_;
+    std::vector<std::string> ids_;
+    std::vector<matlab_array> cells_;
+    std::vector<std::size_t> counts_;
+};
 
 // MATLAB char arrays hold UTF-16 code units; labels are UTF-8.
 std::string utf8_of_utf16(const std::vector<std::int64_t>& units, const std::string& file, const std::string& name) {
@@ -283,8 +314,9 @@ std::vector<std::pair<std::string, std::string>> mat_variables(const std::string
     return variables_of(src);
 }
 
-recording read_recording_mat(const std::string& path, const mat_choice& choice) {
-    hdf5::source src(path);
+recording open_recording_mat(const std::string& path, const mat_choice& choice) {
+    const auto shared = std::make_shared<hdf5::source>(path);
+    hdf5::source& src = *shared;
     recording rec;
     rec.source = path;
     rec.origin.format = "mat";
@@ -322,14 +354,15 @@ recording read_recording_mat(const std::string& path, const mat_choice& choice) 
         }
     }
     std::vector<std::size_t> cells;
+    std::vector<std::string> unit_ids;
+    std::vector<matlab_array> arrays;
     for (const std::size_t i: natural_order(ids)) {
-        const matlab_array cell = inspect(src, targets[i], matlab_cell(spikes.name, i));
-        unit_spikes unit{ids[i], read_times(src, cell)};
-        settle_spike_times(unit.spike_times, unit.id,
-                           [&](std::size_t k) { return place{path, matlab_element(cell.name, k)}; }, rec.warnings);
-        rec.units.push_back(std::move(unit));
+        arrays.push_back(inspect(src, targets[i], matlab_cell(spikes.name, i)));
+        rec.units.push_back({ids[i], {}});
+        unit_ids.push_back(ids[i]);
         cells.push_back(i);
     }
+    rec.store = std::make_shared<unit_store>(std::make_unique<mat_loader>(shared, unit_ids, arrays), unit_ids.size());
     rec.origin.units = {"", spikes.name + (choice.unit_ids ? " (ids from " + *choice.unit_ids + ")" : "")};
 
     rec.trial_start = read_times(src, start);
@@ -350,6 +383,12 @@ recording read_recording_mat(const std::string& path, const mat_choice& choice) 
         rec.origin.labels_hint = "; name the variable holding one label per trial with --mat-stimulus VAR";
     }
     validate(rec, mat_places(rec, spikes.name, choice.unit_ids.value_or(""), cells, start.name, stop.name, labels_name));
+    return rec;
+}
+
+recording read_recording_mat(const std::string& path, const mat_choice& choice) {
+    recording rec = open_recording_mat(path, choice);
+    read_all_units(rec);
     return rec;
 }
 

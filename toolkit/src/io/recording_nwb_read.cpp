@@ -4,6 +4,8 @@
 #include <rastrum/errors.hpp>
 #include <rastrum/recording_nwb.hpp>
 
+#include <memory>
+
 namespace rastrum {
 
 namespace {
@@ -124,7 +126,32 @@ struct units_read {
     std::vector<std::size_t> first;  // index in spike_times of each unit's first spike
 };
 
-units_read read_units(hdf5::source& src, const std::optional<std::string>& unit_column, recording& rec) {
+// Unit u is a hyperslab of /units/spike_times, read when asked.
+class nwb_loader: public unit_loader {
+public:
+    nwb_loader(std::shared_ptr<hdf5::source> src, std::vector<std::string> ids, std::vector<std::size_t> first,
+               std::vector<std::size_t> counts):
+        src_(std::move(src)), ids_(std::move(ids)), first_(std::move(first)), counts_(std::move(counts)) {}
+    std::size_t spike_count(std::size_t u) const override { return counts_[u]; }
+    std::vector<seconds> load(std::size_t u, std::vector<std::string>& warnings) override {
+        const hdf5::error_capture capture;  // on the thread that reads
+        const std::string times_path = std::string(units_table) + "/spike_times";
+        std::vector<seconds> times = src_->read_float64_range(times_path, first_[u], counts_[u]);
+        settle_spike_times(times, ids_[u],
+                           [&](std::size_t i) { return place{src_->path(), hdf5::element_path(times_path, first_[u] + i)}; },
+                           warnings);
+        return times;
+    }
+
+private:
+    std::shared_ptr<hdf5::source> src_;
+    std::vector<std::string> ids_;
+    std::vector<std::size_t> first_, counts_;
+};
+
+units_read read_units(const std::shared_ptr<hdf5::source>& shared, const std::optional<std::string>& unit_column,
+                      recording& rec) {
+    hdf5::source& src = *shared;
     const std::string table = units_table;
     src.group(table, "an NWB Units table (a group /units with spike_times and spike_times_index)");
     const std::string id_path = table + "/id";
@@ -148,25 +175,24 @@ units_read read_units(hdf5::source& src, const std::optional<std::string>& unit_
     }
     const std::string times_path = table + "/spike_times";
     const std::string index_path = times_path + "_index";
-    std::vector<double> times = src.read_float64(times_path);
+    const std::size_t spikes = src.float64_count(times_path);
     src.dataset(index_path, "a VectorIndex of end offsets into " + times_path + " (one per unit)");
     const std::vector<std::int64_t> ends = src.read_int64(index_path);
     require_rows(src.path(), index_path, ends.size(), rows, id_path);
-    check_offsets(src.path(), index_path, ends, times.size(), times_path);
+    check_offsets(src.path(), index_path, ends, spikes, times_path);
 
     units_read out{names_path, {}, {}};
+    std::vector<std::string> unit_ids;
+    std::vector<std::size_t> counts;
     for (const std::size_t row: natural_order(ids)) {
         const std::size_t begin = row == 0 ? 0 : static_cast<std::size_t>(ends[row - 1]);
-        const std::size_t end = static_cast<std::size_t>(ends[row]);
-        unit_spikes unit{ids[row], std::vector<double>(times.begin() + static_cast<std::ptrdiff_t>(begin),
-                                                       times.begin() + static_cast<std::ptrdiff_t>(end))};
-        settle_spike_times(unit.spike_times, unit.id,
-                           [&](std::size_t i) { return place{src.path(), hdf5::element_path(times_path, begin + i)}; },
-                           rec.warnings);
-        rec.units.push_back(std::move(unit));
+        rec.units.push_back({ids[row], {}});
+        unit_ids.push_back(ids[row]);
+        counts.push_back(static_cast<std::size_t>(ends[row]) - begin);
         out.rows.push_back(row);
         out.first.push_back(begin);
     }
+    rec.store = std::make_shared<unit_store>(std::make_unique<nwb_loader>(shared, unit_ids, out.first, counts), ids.size());
     rec.origin.units = {"", names_path == id_path ? table : table + " (ids from " + names_path + ")"};
     return out;
 }
@@ -252,17 +278,24 @@ std::vector<nwb_table> nwb_tables(const std::string& path) {
     return tables;
 }
 
-recording read_recording_nwb(const std::string& path, const nwb_choice& choice,
+recording open_recording_nwb(const std::string& path, const nwb_choice& choice,
                              const std::optional<std::string>& stimulus_column) {
-    hdf5::source src(path);
+    auto src = std::make_shared<hdf5::source>(path);
     recording rec;
     rec.source = path;
     rec.origin.format = "nwb";
-    rec.origin.format_detail = "an NWB " + check_nwb_root(src) + " file";
+    rec.origin.format_detail = "an NWB " + check_nwb_root(*src) + " file";
     const units_read units = read_units(src, choice.unit_column, rec);
-    const std::string table = intervals_table(src, choice.intervals);
-    const std::string labels = read_trials(src, table, stimulus_column, rec);
+    const std::string table = intervals_table(*src, choice.intervals);
+    const std::string labels = read_trials(*src, table, stimulus_column, rec);
     validate(rec, nwb_places(rec, units.id_path, units.rows, units.first, table, labels));
+    return rec;
+}
+
+recording read_recording_nwb(const std::string& path, const nwb_choice& choice,
+                             const std::optional<std::string>& stimulus_column) {
+    recording rec = open_recording_nwb(path, choice, stimulus_column);
+    read_all_units(rec);
     return rec;
 }
 

@@ -17,17 +17,18 @@ recording_overview survey(const recording& rec) {
         o.longest_trial = std::max(o.longest_trial, d);
         o.total_trial_time += d;
     }
-    for (const auto& u: rec.units) {
+    for (std::size_t u = 0; u < rec.units.size(); ++u) {
+        const shared_spikes times = rec.spikes(u);  // one unit at a time, whatever the recording's size
         unit_overview uo;
-        uo.id = u.id;
-        uo.spikes = u.spike_times.size();
-        uo.spikes_outside_trials = spikes_outside_trials(u.spike_times, rec);
+        uo.id = rec.units[u].id;
+        uo.spikes = times->size();
+        uo.spikes_outside_trials = spikes_outside_trials(*times, rec);
         uo.spikes_in_trials = uo.spikes - uo.spikes_outside_trials;
         uo.rate_in_trials_hz = o.total_trial_time > 0 ? static_cast<double>(uo.spikes_in_trials) / o.total_trial_time : 0;
         o.units.push_back(uo);
     }
     o.labels = stimulus_labels(rec);
-    o.warnings = rec.warnings;
+    o.warnings = rec.all_warnings();
     o.origin = rec.origin;
     o.source = rec.source;
     return o;

@@ -36,15 +36,32 @@ nlohmann::ordered_json synthetic_answers_json(const synthetic_recording& synth, 
     return j;
 }
 
+namespace {
+void write_answers(const atomic_file& answers, const synthetic_recording& synth, const nlohmann::ordered_json& parameters) {
+    std::ofstream out(answers.temporary_path());
+    out << synthetic_answers_json(synth, parameters).dump(2) << "\n";
+    if (!out) throw error("cannot write " + answers.final_path());
+}
+}  // namespace
+
 void write_synthetic(const synthetic_recording& synth, const std::string& recording_path,
                      const nlohmann::ordered_json& parameters) {
     atomic_file answers(answers_path_for(recording_path));
-    {
-        std::ofstream out(answers.temporary_path());
-        out << synthetic_answers_json(synth, parameters).dump(2) << "\n";
-        if (!out) throw error("cannot write " + answers.final_path());
-    }
+    write_answers(answers, synth, parameters);
     write_recording_hdf5(synth.rec, recording_path);
+    answers.commit();
+}
+
+void make_and_write_synthetic(const std::function<synthetic_recording(const unit_ready&)>& make,
+                              const std::string& recording_path, const nlohmann::ordered_json& parameters) {
+    atomic_file answers(answers_path_for(recording_path));
+    recording_hdf5_writer writer(recording_path);
+    const synthetic_recording synth = make([&](recording& rec, std::size_t u) {
+        writer.add_unit(rec.units[u].id, rec.units[u].spike_times, rec.source);
+        std::vector<seconds>().swap(rec.units[u].spike_times);  // written: let it go
+    });
+    write_answers(answers, synth, parameters);
+    writer.finish(synth.rec);
     answers.commit();
 }
 
