@@ -41,75 +41,11 @@ import sys
 import h5py
 import numpy as np
 
-MASK = (1 << 64) - 1
-GOLDEN = 0x9E3779B97F4A7C15
+from tool_random import RandomStream, derive_seed, shuffle, text_hash
 
 
-# ---- randomness, as toolkit/src/random.cpp ----
 
-def mix64(x):
-    """SplitMix64's finaliser (Steele, Lea & Flood 2014)."""
-    x = (x + GOLDEN) & MASK
-    x = ((x ^ (x >> 30)) * 0xBF58476D1CE4E5B9) & MASK
-    x = ((x ^ (x >> 27)) * 0x94D049BB133111EB) & MASK
-    return x ^ (x >> 31)
-
-
-def text_hash(text):
-    """FNV-1a, 64 bits, over the UTF-8 bytes."""
-    h = 0xCBF29CE484222325
-    for c in text.encode("utf-8"):
-        h = ((h ^ c) * 0x100000001B3) & MASK
-    return h
-
-
-def derive_seed(seed, tags):
-    h = mix64(seed & MASK)
-    for t in tags:
-        h = mix64(h ^ mix64((t + 0x632BE59BD9B4E019) & MASK))
-    return h
-
-
-def rotl(x, k):
-    return ((x << k) | (x >> (64 - k))) & MASK
-
-
-class Xoshiro256StarStar:
-    def __init__(self, seed):
-        x = seed
-        self.s = []
-        for _ in range(4):
-            x = (x + GOLDEN) & MASK
-            self.s.append(mix64((x - GOLDEN + 0x1234567) & MASK))
-
-    def next(self):
-        s = self.s
-        result = (rotl((s[1] * 5) & MASK, 7) * 9) & MASK
-        t = (s[1] << 17) & MASK
-        s[2] ^= s[0]
-        s[3] ^= s[1]
-        s[1] ^= s[2]
-        s[0] ^= s[3]
-        s[2] ^= t
-        s[3] = rotl(s[3], 45)
-        return result
-
-    def below(self, n):
-        """Uniform on [0, n) by Lemire's multiply-and-reject."""
-        m = self.next() * n
-        low = m & MASK
-        if low < n:
-            threshold = ((1 << 64) - n) % n
-            while low < threshold:
-                m = self.next() * n
-                low = m & MASK
-        return m >> 64
-
-
-def shuffle(v, rng):
-    for i in range(len(v), 1, -1):
-        j = rng.below(i)
-        v[i - 1], v[j] = v[j], v[i - 1]
+# Randomness as toolkit/src/random.cpp: tool_random.py, shared with the stimulus-information baseline.
 
 
 def bits_of(x):
@@ -120,7 +56,7 @@ def nested_splits(trials, splits, seed):
     """Block (0..7) of every trial in each split, as make_nested_splits."""
     result = []
     for s in range(splits):
-        rng = Xoshiro256StarStar(derive_seed(seed, [0x5B117, s]))
+        rng = RandomStream(derive_seed(seed, [0x5B117, s]))
         order = list(range(trials))
         shuffle(order, rng)
         block_of = np.zeros(trials, dtype=np.int64)
