@@ -46,7 +46,14 @@ recording big_recording(std::size_t units, std::size_t spikes) {
 // read unit by unit, survey and direct (2 threads, 10 ms, letters 1-2) pass within 70 MiB and
 // stiminfo within 90 MiB, while convert, which holds every unit, fails within 130 MiB. 20 units of
 // 10^6 float64 spike times are 153 MiB: held whole they cannot fit in this limit.
+#ifdef RASTRUM_SANITIZED
+// AddressSanitizer's shadow memory and its quarantine of freed blocks (256 MiB by default) add to
+// every run, so the sanitized build checks these commands for memory errors only; the bound itself
+// is checked by the normal build.
+constexpr unsigned long limit_kib = 1024 * 1024;
+#else
 constexpr unsigned long limit_kib = 160 * 1024;
+#endif
 
 }  // namespace
 
@@ -72,11 +79,13 @@ TEST(LargeRecording, AnalysedWithinAMemoryLimitTheWholeFileWouldBreak) {
     EXPECT_EQ(stiminfo.exit_code, 0) << stiminfo.err;
     EXPECT_TRUE(file_exists(folder + "/stiminfo.json"));
 
+#ifndef RASTRUM_SANITIZED
     // The limit bites: convert reads every unit before writing, and cannot within it.
     const auto converted = run_rastrum_limited("convert " + quoted(file) + " --quiet --out " + quoted(folder + "/copy.h5"),
                                                600, limit_kib);
     EXPECT_NE(converted.exit_code, 0) << "convert held 153 MiB of spikes within the limit: the limit proves nothing";
     EXPECT_FALSE(file_exists(folder + "/copy.h5"));
+#endif
     std::remove(file.c_str());
 }
 

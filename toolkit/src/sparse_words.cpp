@@ -15,6 +15,7 @@ using entry = sparse_words::entry;
 constexpr std::size_t short_run = 24;
 
 void insertion_sort_by_code(entry* first, entry* last) {
+    if (last - first < 2) return;
     for (entry* i = first + 1; i < last; ++i) {
         const entry e = *i;
         entry* j = i;
