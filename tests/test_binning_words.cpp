@@ -105,7 +105,9 @@ TEST(sparse_words, lists_exactly_the_words_holding_a_spike_sorted_by_code) {
                 }
                 for (const auto* e = words.begin_at(t); e < words.end_at(t); ++e) {
                     listed.insert({e->code, e->trial, e->position});
-                    if (e + 1 < words.end_at(t)) ASSERT_LE(e->code, (e + 1)->code) << "L " << L << " t " << t;
+                    if (e + 1 < words.end_at(t)) {
+                        ASSERT_LE(e->code, (e + 1)->code) << "L " << L << " t " << t;
+                    }
                 }
                 ASSERT_EQ(listed, here) << "L " << L << " t " << t;
                 expected.insert(here.begin(), here.end());
@@ -113,7 +115,9 @@ TEST(sparse_words, lists_exactly_the_words_holding_a_spike_sorted_by_code) {
             const auto& all = words.pooled();
             for (std::size_t i = 0; i < all.size(); ++i) {
                 pooled.insert({all[i].code, all[i].trial, all[i].position});
-                if (i + 1 < all.size()) ASSERT_LE(all[i].code, all[i + 1].code) << "L " << L;
+                if (i + 1 < all.size()) {
+                    ASSERT_LE(all[i].code, all[i + 1].code) << "L " << L;
+                }
             }
             ASSERT_EQ(pooled, expected) << "L " << L;
         }

@@ -119,7 +119,7 @@ void expect_late_failure_leaves_nothing(const std::string& folder, const std::st
     }
     const std::string outputs = " --json " + quoted(kept) + " --csv " + quoted(folder + "/out.csv") + " --curves-csv " +
                                 quoted(folder + "/curves.csv") + " --h5 " + quoted(folder + "/out.h5");
-    for (const std::string analysis: {"direct " + input + " --bin-ms 10 --letters 1-2 --threads 2",
+    for (const std::string& analysis: {"direct " + input + " --bin-ms 10 --letters 1-2 --threads 2",
                                       "stiminfo " + input + " --window-ms 0:500 --code count --null-shuffles 20 --bootstrap 0 --threads 2"}) {
         const auto r = run_rastrum(analysis + outputs);
         EXPECT_EQ(r.exit_code, 3) << analysis << ": " << r.err;

@@ -79,7 +79,9 @@ void expect_unit_by_unit_equals_whole(const recording_source& s, bool expect_on_
     for (std::size_t u = 0; u < whole.units.size(); ++u) {
         EXPECT_EQ(opened.units[u].id, whole.units[u].id);
         // Nothing is held before it is asked for: the point of reading on demand.
-        if (expect_on_demand) EXPECT_TRUE(opened.units[u].spike_times.empty()) << opened.units[u].id;
+        if (expect_on_demand) {
+            EXPECT_TRUE(opened.units[u].spike_times.empty()) << opened.units[u].id;
+        }
         EXPECT_EQ(opened.spike_count(u), whole.units[u].spike_times.size()) << whole.units[u].id;
     }
     // Read in the reverse order, and twice, to show that a unit does not depend on what was read before.

@@ -30,24 +30,31 @@ TEST(trial_partition, blocks_are_near_equal_and_nested) {
 // The tally must give, for every subset, the summary of the histograms counted directly (common
 // practice: count each subset's words in a map, then sum the summaries of the histograms), for words
 // seen once, a few times, more often than the 255 a byte lane holds and more often than the table
-// holds, and for the unlisted all-zero word.
-TEST(subset_tally, equals_direct_counts_in_every_subset) {
+// holds, and for the unlisted all-zero word; with 4 splits (byte lanes of any width) and 8 (the
+// default, a fixed width of vector lanes), and for histograms listing many words (counted per
+// trial) and few (counted lane by lane).
+class subset_tally_splits: public ::testing::TestWithParam<unsigned> {};
+
+TEST_P(subset_tally_splits, equals_direct_counts_in_every_subset) {
     random_stream rng(99);
     const std::size_t trials = 37;
-    const auto splits = make_nested_splits(trials, 4, 1);
+    const auto splits = make_nested_splits(trials, GetParam(), 1);
     struct histogram {
         std::vector<sparse_words::entry> words;
         count per_trial;
     };
-    std::vector<histogram> histograms(2);
+    std::vector<histogram> histograms(3);
     histograms[0].per_trial = 400;
     histograms[1].per_trial = 150;
-    for (auto& h: histograms) {
-        for (int i = 0; i < 2000; ++i) {
+    histograms[2].per_trial = 3;
+    for (std::size_t index = 0; index < histograms.size(); ++index) {
+        auto& h = histograms[index];
+        const int scale = index == 2 ? 40 : 1;  // the last lists fewer words than 4 per trial
+        for (int i = 0; i < 2000 / scale; ++i) {
             h.words.push_back({1 + rng.below(1 + rng.below(50)), static_cast<std::uint32_t>(rng.below(trials)), 0});
         }
-        for (int i = 0; i < 1200; ++i) h.words.push_back({100 + rng.below(900), static_cast<std::uint32_t>(rng.below(trials)), 0});
-        for (int i = 0; i < 700; ++i) h.words.push_back({77, static_cast<std::uint32_t>(rng.below(trials)), 0});
+        for (int i = 0; i < 1200 / scale; ++i) h.words.push_back({100 + rng.below(900), static_cast<std::uint32_t>(rng.below(trials)), 0});
+        for (int i = 0; i < 700 / scale; ++i) h.words.push_back({77, static_cast<std::uint32_t>(rng.below(trials)), 0});
         std::sort(h.words.begin(), h.words.end(), [](const auto& a, const auto& b) { return a.code < b.code; });
         // At most per_trial words per trial, as in a real histogram.
         std::vector<count> in_trial(trials, 0);
@@ -61,15 +68,7 @@ TEST(subset_tally, equals_direct_counts_in_every_subset) {
         subset_tally tally(splits, trials, dense_limit);
         for (int repeat = 0; repeat < 2; ++repeat) {  // clear() must forget everything
             tally.clear();
-            for (const auto& h: histograms) {
-                for (std::size_t i = 0; i < h.words.size();) {
-                    std::size_t j = i + 1;
-                    while (j < h.words.size() && h.words[j].code == h.words[i].code) ++j;
-                    tally.add_word(h.words.data() + i, h.words.data() + j);
-                    i = j;
-                }
-                tally.close_histogram(h.words.data(), h.words.data() + h.words.size(), h.per_trial);
-            }
+            for (const auto& h: histograms) tally.add_histogram(h.words.data(), h.words.data() + h.words.size(), h.per_trial);
             for (std::size_t s = 0; s < splits.size(); ++s) {
                 for (int level = 0; level < nested_levels; ++level) {
                     for (int b = 0; b < (1 << level); ++b) {
@@ -102,3 +101,5 @@ TEST(subset_tally, equals_direct_counts_in_every_subset) {
         }
     }
 }
+
+INSTANTIATE_TEST_SUITE_P(split_counts, subset_tally_splits, ::testing::Values(4u, 8u));

@@ -90,24 +90,13 @@ private:
         }
     }
 
-    /// Every run of equal codes in [first, last), sorted by code, as one word of `tally`.
-    static void add_runs(subset_tally& tally, const sparse_words::entry* first, const sparse_words::entry* last) {
-        while (first < last) {
-            const sparse_words::entry* end = first + 1;
-            while (end < last && end->code == first->code) ++end;
-            tally.add_word(first, end);
-            first = end;
-        }
-    }
-
     // The word at one start position, across the trials of each subset; averaged over positions by
     // averaging the histograms' sums (see mean_summary), which the tally adds up exactly.
     void measure_noise(const sparse_words& words, subset_entropies& e) {
         const std::size_t positions = words.positions();
         noise_.clear();
         for (std::size_t t = 0; t < positions; ++t) {
-            add_runs(noise_, words.begin_at(t), words.end_at(t));
-            noise_.close_histogram(words.begin_at(t), words.end_at(t), 1);
+            noise_.add_histogram(words.begin_at(t), words.end_at(t), 1);
         }
         estimate_cells(e.noise, noise_, static_cast<double>(positions));
     }
@@ -116,8 +105,7 @@ private:
     void measure_total(const sparse_words& words, subset_entropies& e) {
         const auto& pooled = words.pooled();
         total_.clear();
-        add_runs(total_, pooled.data(), pooled.data() + pooled.size());
-        total_.close_histogram(pooled.data(), pooled.data() + pooled.size(), words.positions());
+        total_.add_histogram(pooled.data(), pooled.data() + pooled.size(), words.positions());
         estimate_cells(e.total, total_, 1.0);
         const count_summary all = total_.summary(0, 0);
         e.samples = all.samples;

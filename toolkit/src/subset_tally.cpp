@@ -3,12 +3,16 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstring>
 
 namespace rastrum {
 
 namespace {
 
 using entry = sparse_words::entry;
+
+/// 16 byte lanes added at once (a GCC and Clang vector extension; SSE2 on x86-64).
+typedef std::uint8_t byte_vector __attribute__((vector_size(16)));
 
 /// Counts of the 15 nested subsets from the counts of the 8 eighths, in subset_index order.
 template <typename T>
@@ -24,7 +28,8 @@ void compose(const T* eighths, T* subsets) {
 
 subset_tally::subset_tally(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit):
     splits_(splits), trials_(trials), lanes_(splits.size() * nested_blocks),
-    dense_limit_(std::max<count>(dense_limit, 2)), row_(static_cast<std::size_t>(dense_limit_) + 1) {
+    dense_limit_(std::max<count>(dense_limit, 2)), rows_(static_cast<std::size_t>(dense_limit_) + 1),
+    cells_(splits.size() * nested_subsets) {
     const std::size_t cells = splits.size() * nested_subsets;
     lane_of_.assign(trials_ * lanes_, 0);
     lane_index_.assign(trials_ * splits.size(), 0);
@@ -40,24 +45,21 @@ subset_tally::subset_tally(const std::vector<nested_split>& splits, std::size_t 
         }
         compose(eighth_size_.data() + s * nested_blocks, cell_size_.data() + s * nested_subsets);
     }
-    n_log2_n_.resize(row_);
-    leave_one_out_.resize(row_);
+    n_log2_n_.resize(rows_);
+    leave_one_out_.resize(rows_);
     for (count n = 0; n <= dense_limit_; ++n) {
         n_log2_n_[n] = n_log2_n(n);
         leave_one_out_[n] = static_cast<double>(n) * n_log2_n_step(static_cast<double>(n));
     }
-    frequency_.assign(cells * row_, 0);
-    largest_.assign(cells, 0);
+    frequency_.assign(rows_ * cells_, 0);
     beyond_.assign(cells, count_summary{});
     eighths_.assign(lanes_, 0);
     partial_.assign(lanes_, 0);
 }
 
 void subset_tally::clear() {
-    for (std::size_t c = 0; c < largest_.size(); ++c) {
-        std::fill_n(frequency_.begin() + static_cast<std::ptrdiff_t>(c * row_), largest_[c] + 1, 0u);
-        largest_[c] = 0;
-    }
+    std::fill_n(frequency_.begin(), (largest_ + 1) * cells_, 0u);
+    largest_ = 0;
     std::fill(beyond_.begin(), beyond_.end(), count_summary{});
     per_trial_ = 0;
 }
@@ -83,27 +85,59 @@ void subset_tally::count_eighths(const entry* first, const entry* last) {
 template <std::size_t fixed_lanes>
 void subset_tally::add_byte_lanes(const entry* first, const entry* last) {
     const std::size_t lanes = fixed_lanes == 0 ? lanes_ : fixed_lanes;
-    std::uint8_t* partial = partial_.data();
     const std::uint8_t* lane_of = lane_of_.data();
     while (first < last) {
         // Byte lanes hold at most 255 occurrences; widen them before they could overflow.
         const entry* stop = first + std::min<std::ptrdiff_t>(255, last - first);
-        std::fill_n(partial, lanes, std::uint8_t{0});
-        for (; first < stop; ++first) {
-            const std::uint8_t* __restrict lane = lane_of + first->trial * lanes;
-            for (std::size_t i = 0; i < lanes; ++i) partial[i] = static_cast<std::uint8_t>(partial[i] + lane[i]);
+        if constexpr (fixed_lanes > 0) {
+            // Sums in vector variables stay in registers; a byte array is stored and reloaded at every
+            // occurrence (a chain of store-to-load latencies, 3x slower when measured).
+            constexpr std::size_t vectors = fixed_lanes / sizeof(byte_vector);
+            byte_vector partial[vectors] = {};
+            for (; first < stop; ++first) {
+                const std::uint8_t* lane = lane_of + first->trial * fixed_lanes;
+                for (std::size_t v = 0; v < vectors; ++v) {
+                    byte_vector add;
+                    std::memcpy(&add, lane + v * sizeof(byte_vector), sizeof(byte_vector));
+                    partial[v] += add;
+                }
+            }
+            for (std::size_t i = 0; i < fixed_lanes; ++i) eighths_[i] += partial[i / sizeof(byte_vector)][i % sizeof(byte_vector)];
+        } else {
+            std::uint8_t* partial = partial_.data();
+            std::fill_n(partial, lanes, std::uint8_t{0});
+            for (; first < stop; ++first) {
+                const std::uint8_t* __restrict lane = lane_of + first->trial * lanes;
+                for (std::size_t i = 0; i < lanes; ++i) partial[i] = static_cast<std::uint8_t>(partial[i] + lane[i]);
+            }
+            for (std::size_t i = 0; i < lanes; ++i) eighths_[i] += partial[i];
         }
-        for (std::size_t i = 0; i < lanes; ++i) eighths_[i] += partial[i];
     }
 }
 
 void subset_tally::tally(const std::uint32_t* eighths) {
+    // Members in locals: after a store through a member's array the compiler must otherwise reload
+    // the members, a chain of store-to-load latencies (measured: 20% of the time at 2^16 words).
+    std::uint32_t* const frequency = frequency_.data();
+    const count limit = dense_limit_;
+    const std::size_t cells = cells_;
     std::uint32_t subsets[nested_subsets];
     for (std::size_t s = 0; s < splits_.size(); ++s) {
         compose(eighths + s * nested_blocks, subsets);
+        // No subset holds a word more often than the whole set does.
+        if (s == 0) largest_ = std::max(largest_, std::min<count>(subsets[0], limit));
         // The whole set is the same in every split: it is kept in split 0 only.
+        // Without a test for n >= 2: words seen 0 or 1 times land in rows 0 and 1 of the table, which
+        // summary() does not read. Whether an eighth holds two occurrences is a coin toss for the branch
+        // predictor; measured, the branch cost more than the stores it saved.
         for (int i = s == 0 ? 0 : 1; i < nested_subsets; ++i) {
-            if (subsets[i] >= 2) bump(s * nested_subsets + static_cast<std::size_t>(i), subsets[i]);
+            const std::size_t cell = s * nested_subsets + static_cast<std::size_t>(i);
+            const count n = subsets[i];
+            if (n > limit) {
+                beyond_[cell].add(n);
+                continue;
+            }
+            ++frequency[n * cells + cell];
         }
     }
 }
@@ -152,17 +186,33 @@ void subset_tally::add_word(const entry* first, const entry* last) {
     }
 }
 
-void subset_tally::close_histogram(const entry* first, const entry* last, count per_trial) {
+template <bool by_trial>
+void subset_tally::add_runs(const entry* first, const entry* last) {
+    while (first < last) {
+        const entry* end = first + 1;
+        if constexpr (by_trial) ++listed_[first->trial];
+        while (end < last && end->code == first->code) {
+            if constexpr (by_trial) ++listed_[end->trial];
+            ++end;
+        }
+        add_word(first, end);
+        first = end;
+    }
+}
+
+void subset_tally::add_histogram(const entry* first, const entry* last, count per_trial) {
+    // The all-zero word takes what the listed words leave of each eighth. Many listed words are
+    // counted per trial in the same pass that finds the runs (one pass over memory), then per eighth.
     if (static_cast<std::size_t>(last - first) > 4 * trials_) {
-        // Many listed words: count them per trial, then per eighth.
         listed_.assign(trials_, 0);
-        for (const entry* e = first; e < last; ++e) ++listed_[e->trial];
+        add_runs<true>(first, last);
         std::fill(eighths_.begin(), eighths_.end(), 0u);
         const std::size_t splits = splits_.size();
         for (std::size_t k = 0; k < trials_; ++k) {
             for (std::size_t s = 0; s < splits; ++s) eighths_[lane_index_[k * splits + s]] += listed_[k];
         }
     } else {
+        add_runs<false>(first, last);
         count_eighths(first, last);
     }
     for (std::size_t i = 0; i < lanes_; ++i) {
@@ -179,9 +229,8 @@ count_summary subset_tally::summary(std::size_t split, int subset) const {
     // from the samples: distinct = samples - sum over words seen n >= 2 times of (n - 1).
     count_summary s = beyond_[cell];
     count repeats = s.samples - s.distinct;  // occurrences beyond the first of each word seen twice or more
-    const std::uint32_t* frequency = frequency_.data() + cell * row_;
-    for (count n = 2; n <= largest_[cell]; ++n) {
-        const count words = frequency[n];
+    for (count n = 2; n <= largest_; ++n) {
+        const count words = frequency_[n * cells_ + cell];
         if (words == 0) continue;
         repeats += words * (n - 1);
         s.sum_n_log2_n += static_cast<double>(words) * n_log2_n_[n];
