@@ -18,7 +18,12 @@ With --keep DIR --reuse a step whose output and GNU time report are already in D
 an interrupted run resumes, and a long baseline run made beside the tool's (the same command with
 `/usr/bin/time -v -o DIR/<workload>-baseline-<K>.time`) is taken as it is.
 
-Usage: tests/bench/workloads.py [--rastrum build/rastrum] [--workload W1 ...] [--baseline-units K]
+W2 and W3 (stimulus information and populations) are timed by tests/bench/baseline/time_stiminfo.sh,
+whose baseline subsets (pairs and triplets beside single units) do not fit the table below; the
+choice "W2W3" runs it from here, so that a run without --workload times W1, W2 and W3 in one go
+(about 3 hours on this machine kind, nearly all of it the baseline).
+
+Usage: tests/bench/workloads.py [--rastrum build/rastrum] [--workload W1|W2W3|small ...] [--baseline-units K]
        [--skip-baseline] [--keep DIR [--reuse]] [--json OUT]
 
 Adding a workload (W2, W3, ...) is one entry in WORKLOADS below:
@@ -197,11 +202,25 @@ def run_workload(name, w, opt, folder):
     return result
 
 
+def run_stiminfo_workloads(opt):
+    """W2 and W3, tool and baseline side by side, by time_stiminfo.sh; its table is passed on."""
+    print("== W2, W3: stimulus information of 200 units and of 50 pairs and 20 triplets (time_stiminfo.sh)", flush=True)
+    if opt.skip_baseline:
+        print("skipped: time_stiminfo.sh times the tool beside the baseline, never alone", flush=True)
+        return {"workload": "W2W3", "table": None, "baseline": {}}
+    done = subprocess.run(["bash", os.path.join(HERE, "baseline", "time_stiminfo.sh"), opt.rastrum],
+                          capture_output=True, text=True)
+    print(done.stdout, end="", flush=True)
+    if done.returncode != 0:
+        raise SystemExit(f"time_stiminfo.sh failed (exit {done.returncode}):\n{done.stderr}")
+    return {"workload": "W2W3", "table": done.stdout, "baseline": {}}
+
+
 def main():
     p = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     p.add_argument("--rastrum", default="build/rastrum")
-    p.add_argument("--workload", action="append", choices=sorted(WORKLOADS),
-                   help="workloads to run (repeatable; default all but the small case)")
+    p.add_argument("--workload", action="append", choices=sorted(WORKLOADS) + ["W2W3"],
+                   help="workloads to run (repeatable; default W1 and W2W3)")
     p.add_argument("--baseline-units", type=int, default=1, help="K: the baseline runs on the first K and 2K units")
     p.add_argument("--skip-baseline", action="store_true")
     p.add_argument("--reuse", action="store_true",
@@ -216,7 +235,8 @@ def main():
     folder = opt.keep or tempfile.mkdtemp(prefix="rastrum-workloads-")
     os.makedirs(folder, exist_ok=True)
     try:
-        results = [run_workload(n, WORKLOADS[n], opt, folder) for n in (opt.workload or sorted(set(WORKLOADS) - {"small"}))]
+        results = [run_stiminfo_workloads(opt) if n == "W2W3" else run_workload(n, WORKLOADS[n], opt, folder)
+                   for n in (opt.workload or ["W1", "W2W3"])]
     finally:
         if not opt.keep:
             shutil.rmtree(folder, ignore_errors=True)
