@@ -1,4 +1,5 @@
 // Counting words in nested subsets of trials in one pass, against counting each subset directly.
+#include <rastrum/code_counting.hpp>
 #include <rastrum/random.hpp>
 #include <rastrum/trial_partition.hpp>
 #include <rastrum/subset_tally.hpp>
@@ -103,3 +104,28 @@ TEST_P(subset_tally_splits, equals_direct_counts_in_every_subset) {
 }
 
 INSTANTIATE_TEST_SUITE_P(split_counts, subset_tally_splits, ::testing::Values(4u, 8u));
+
+// Counts of codes against a map of each code to its count (common practice), in the map's order, for
+// small spaces (the dense table), large and extreme ones (sorting), one code and none.
+TEST(counts_of_codes, equal_a_map_in_code_order) {
+    random_stream rng(17);
+    std::vector<std::vector<word_code>> cases{{}, {0}, {~word_code{0}, 0, ~word_code{0}}};
+    for (const word_code space: {word_code{1}, word_code{7}, word_code{1000}, word_code{1} << 20, word_code{1} << 40}) {
+        for (const std::size_t n: {std::size_t{1}, std::size_t{50}, std::size_t{5000}}) {
+            std::vector<word_code> codes(n);
+            for (auto& c: codes) c = rng.below(space);
+            cases.push_back(codes);
+        }
+    }
+    for (const auto& codes: cases) {
+        std::map<word_code, count> direct;
+        for (const word_code c: codes) ++direct[c];
+        std::vector<count> expected;
+        for (const auto& [code, n]: direct) expected.push_back(n);
+        EXPECT_EQ(counts_of_codes(codes), expected) << codes.size() << " codes";
+        // A bound on the codes only saves a pass; a wrong one (codes at or above it) changes nothing.
+        for (const word_code space: {word_code{1}, word_code{8}, word_code{1000}, word_code{1} << 20}) {
+            EXPECT_EQ(counts_of_codes(codes, space), expected) << codes.size() << " codes below " << space;
+        }
+    }
+}

@@ -1,6 +1,7 @@
 // Kernels of the direct method: binning, word coding, counting in nested subsets, estimators,
 // and one whole (unit, bin width) estimate. Figures go to notes/performance.md.
 #include <rastrum/binning.hpp>
+#include <rastrum/code_counting.hpp>
 #include <rastrum/direct_method.hpp>
 #include <rastrum/entropy.hpp>
 #include <rastrum/random.hpp>
@@ -79,6 +80,21 @@ void count_words_in_subsets(benchmark::State& state) {
     state.counters["histograms"] = static_cast<double>(1 + splits.size() * (nested_subsets - 1));
 }
 BENCHMARK(count_words_in_subsets)->Arg(4)->Arg(8)->Arg(12)->Arg(16)->Unit(benchmark::kMillisecond);
+
+// Word counting into one histogram, as the stimulus information counts responses: 10^6 random codes
+// from 2^k, unsorted, into the counts of each distinct code in code order (counts_of_codes chooses a
+// dense table or sorting by the code space, which it is told, as stiminfo tells it the code's
+// alphabet). Items: words counted.
+void count_words(benchmark::State& state) {
+    const auto space = std::uint64_t{1} << state.range(0);
+    const std::size_t n = 1000000;
+    random_stream rng(5);
+    std::vector<word_code> codes(n);
+    for (auto& c: codes) c = rng.below(space);
+    for (auto _: state) benchmark::DoNotOptimize(counts_of_codes(codes, space));
+    state.SetItemsProcessed(static_cast<std::int64_t>(state.iterations() * n));
+}
+BENCHMARK(count_words)->Arg(4)->Arg(8)->Arg(12)->Arg(16)->Arg(24)->Unit(benchmark::kMillisecond);
 
 // The ceiling the counting is compared with: a plain histogram of the same codes, unsorted.
 void plain_histogram(benchmark::State& state) {

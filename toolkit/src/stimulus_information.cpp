@@ -1,3 +1,4 @@
+#include <rastrum/code_counting.hpp>
 #include <rastrum/entropy.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/extrapolation.hpp>
@@ -42,16 +43,9 @@ struct histograms {
     count trials = 0;
 };
 
-std::vector<count> counts_of(std::vector<word_code> codes) {
-    std::sort(codes.begin(), codes.end());
-    std::vector<count> counts;
-    for (std::size_t i = 0; i < codes.size();) {
-        std::size_t j = i;
-        while (j < codes.size() && codes[j] == codes[i]) ++j;
-        counts.push_back(j - i);
-        i = j;
-    }
-    return counts;
+/// The alphabet as a bound on the codes, for counts_of_codes (0 when it is too large to matter).
+word_code code_space(double alphabet) {
+    return alphabet >= 1 && alphabet < 9.0e15 ? static_cast<word_code>(std::ceil(alphabet)) : 0;
 }
 
 histograms histograms_of(const labelled_responses& t, const std::vector<std::size_t>& use) {
@@ -68,10 +62,11 @@ histograms histograms_of(const labelled_responses& t, const std::vector<std::siz
         for (std::size_t k: use) take(k);
     }
     h.trials = pooled.size();
-    h.pooled = counts_of(std::move(pooled));
+    const word_code space = code_space(t.alphabet);
+    h.pooled = counts_of_codes(pooled, space);
     for (auto& codes: per) {
         h.trials_in.push_back(codes.size());
-        h.by_condition.push_back(counts_of(std::move(codes)));
+        h.by_condition.push_back(counts_of_codes(codes, space));
     }
     return h;
 }
@@ -146,7 +141,7 @@ double extrapolated_information(const labelled_responses& t, const info_settings
 
 double extrapolated_entropy(const std::vector<word_code>& responses, const info_settings& settings) {
     const double n = static_cast<double>(responses.size());
-    std::vector<double> x{1 / n}, y{plugin_of(counts_of(responses))}, w{1};
+    std::vector<double> x{1 / n}, y{plugin_of(counts_of_codes(responses))}, w{1};
     std::vector<word_code> order = responses;
     for (unsigned split = 0; split < settings.splits; ++split) {
         random_stream rng(derive_seed(settings.seed, {0xe47ULL, split}));
@@ -158,7 +153,7 @@ double extrapolated_entropy(const std::vector<word_code>& responses, const info_
                 const std::size_t to = order.size() * static_cast<std::size_t>(b + 1) / static_cast<std::size_t>(blocks);
                 if (to <= from) continue;
                 x.push_back(1 / static_cast<double>(to - from));
-                y.push_back(plugin_of(counts_of(std::vector<word_code>(order.begin() + static_cast<std::ptrdiff_t>(from),
+                y.push_back(plugin_of(counts_of_codes(std::vector<word_code>(order.begin() + static_cast<std::ptrdiff_t>(from),
                                                                        order.begin() + static_cast<std::ptrdiff_t>(to)))));
                 w.push_back(1.0 / (blocks * settings.splits));
             }
@@ -206,7 +201,7 @@ double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std:
 double response_entropy(const std::vector<word_code>& responses, double alphabet, info_estimator estimator,
                         const info_settings& settings) {
     if (responses.empty()) return 0;
-    const std::vector<count> c = counts_of(responses);
+    const std::vector<count> c = counts_of_codes(responses);
     const count_summary s = summarize_counts(c);
     switch (estimator) {
     case info_estimator::plugin: return plugin_entropy(s);
