@@ -1,5 +1,6 @@
 // NSB estimator: fixed-beta Dirichlet pieces (nsb_detail) and the integral over beta.
 // Derivations are in notes/methods-nsb.md.
+#include "log_gamma.hpp"
 #include "nsb_moments.hpp"
 
 #include <rastrum/errors.hpp>
@@ -71,7 +72,7 @@ grouped_counts group_counts(const std::vector<count>& counts, double alphabet) {
 
 double log_rising_excess(double z, double m) {
     if (m == 0) return 0;
-    if (z < stirling_from) return std::lgamma(z + m) - std::lgamma(z) - m * std::log(z);
+    if (z < stirling_from) return log_gamma(z + m) - log_gamma(z) - m * std::log(z);
     // Stirling for both gammas; the (x - 1/2) ln x terms are combined through log1p so nothing of
     // size z ln z is ever formed.
     return (z + m - 0.5) * std::log1p(m / z) - m + stirling_remainder(z + m) - stirling_remainder(z);

@@ -1,3 +1,5 @@
+#include "log_gamma.hpp"
+
 #include <rastrum/code_counting.hpp>
 #include <rastrum/entropy.hpp>
 #include <rastrum/errors.hpp>
@@ -242,8 +244,8 @@ double relevant_responses(const std::vector<count>& counts, double alphabet) {
     if (n == 0 || k <= observed) return observed;
     const double N = static_cast<double>(n);
     auto log_evidence = [&](double beta) {
-        double e = std::lgamma(k * beta) - std::lgamma(N + k * beta);
-        for (count c: seen) e += std::lgamma(static_cast<double>(c) + beta) - std::lgamma(beta);
+        double e = log_gamma(k * beta) - log_gamma(N + k * beta);
+        for (count c: seen) e += log_gamma(static_cast<double>(c) + beta) - log_gamma(beta);
         return e;
     };
     double best_beta = 1e-6, best = -INFINITY;
