@@ -83,6 +83,34 @@ TEST(direct, homogeneous_firing_carries_no_information) {
     }
 }
 
+// Sparse bins: with T trials and a spike probability p per bin and trial, T p << 1, most positions
+// hold no spike in any trial and the plug-in noise entropy of a position is about (ln T / ln(1/p))
+// of its true value (our derivation from the binomial probabilities, not quoted: E[H] of T
+// Bernoulli(p) samples is about T p H2(1/T) when at most one trial holds a spike, against
+// H2(p) ~ p log2(1/p)). Homogeneous firing, whose information is exactly 0, then shows information,
+// which the "sparse" caution must say; at many spikes per position it must not appear. The
+// threshold and the sizes of the bias are measured in notes/methods.md, "Sparse bins".
+TEST(direct, sparse_bins_carry_a_caution_and_dense_ones_none) {
+    poisson_spec spec;
+    spec.session.trials = 20;
+    spec.session.duration = 2.0;
+    spec.rates_hz = {10};
+    spec.modulations = {0.0};
+    spec.seed = 4;
+    const auto synth = make_poisson(spec);
+    auto has_sparse = [](const direct_estimate& e) {
+        for (const auto& w: e.warnings) {
+            if (w.rfind("sparse: ", 0) == 0) return true;
+        }
+        return false;
+    };
+    const auto fine = run_direct(synth.rec, request_for(0.02, 2)).at(0);  // 20 x 10 Hz x 0.02 ms = 0.004
+    EXPECT_TRUE(has_sparse(fine.estimate));
+    EXPECT_GT(fine.estimate.info_rate, 10.0) << "the bias the caution is about was not seen";
+    const auto coarse = make_frozen_bins(independent_bins({15}, 0.0, 3));  // 150 x 15 Hz x 2 ms = 4.5
+    EXPECT_FALSE(has_sparse(run_direct(coarse.rec, request_for(2.0, 4)).at(0).estimate));
+}
+
 // Inhomogeneous Poisson firing: as dt -> 0 the single-letter information rate tends to
 // rbar * I_one_spike, I_one_spike = (1/T) integral (r/rbar) log2(r/rbar) dt bits per spike
 // (Brenner, Strong, Koberle, Bialek & de Ruyter van Steveninck 2000, Neural Comput. 12:1531).

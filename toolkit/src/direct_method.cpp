@@ -381,6 +381,18 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
             }
         }
     }
+    // Few spikes per bin position across the trials: each position's noise entropy rests on one
+    // spike or none and is underestimated, beyond what the corrections and the interval see
+    // (notes/methods.md, "Sparse bins"; the threshold comes from the experiment there).
+    const double per_position = letters.bins == 0 ? 0 : static_cast<double>(letters.spikes) / static_cast<double>(letters.bins);
+    if (per_position < sparse_spikes_per_position) {
+        out.warnings.push_back(
+            "sparse: " + format_fixed(per_position, 3) + " spikes per bin position across all " + std::to_string(n_trials) +
+            " trials (below " + format_fixed(sparse_spikes_per_position, 1) +
+            "): the noise entropy of most positions rests on one spike or none, so it is underestimated and the "
+            "information overestimated by an amount that neither the bias corrections nor the interval capture; "
+            "use wider bins or more trials, or measure the bias with --null-rotations");
+    }
     if (n_trials < 50) {
         out.warnings.push_back("only " + std::to_string(n_trials) +
                                " trials: noise entropies of all but short words are strongly undersampled");

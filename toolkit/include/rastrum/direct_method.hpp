@@ -27,6 +27,11 @@ inline constexpr int subset_estimator_count = 3;
 const char* subset_estimator_name(subset_estimator e);
 subset_estimator parse_subset_estimator(const std::string& name);
 
+/// Below this many spikes per bin position (summed over the trials), estimates carry a "sparse"
+/// caution: the noise entropy is then underestimated beyond what the corrections and the interval
+/// see (measured with homogeneous firing, notes/methods.md, "Sparse bins").
+inline constexpr double sparse_spikes_per_position = 0.5;
+
 struct direct_settings {
     int letters_min = 1;                            // word lengths analysed: letters_min..letters_max
     int letters_max = 10;
