@@ -231,9 +231,10 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
                                 std::to_string(n_trials));
     }
     if (letters.bins < static_cast<std::size_t>(settings.letters_max) + 1) {
-        throw insufficient_data("trials hold " + std::to_string(letters.bins) + " bins; words of " +
+        throw insufficient_data("at " + format_fixed(1000 * bin_width, 3) + " ms bins the trials hold " +
+                                std::to_string(letters.bins) + " whole bins; words of up to " +
                                 std::to_string(settings.letters_max) + " letters need at least " +
-                                std::to_string(settings.letters_max + 1));
+                                std::to_string(settings.letters_max + 1) + " (narrower bins or fewer letters)");
     }
 
     const auto splits = make_nested_splits(n_trials, settings.splits, settings.seed);

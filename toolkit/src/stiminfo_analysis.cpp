@@ -381,10 +381,11 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         r.few_trials = fewest < r.distinct_responses;
         if (r.few_trials) {
             const auto c = static_cast<std::size_t>(std::min_element(per_condition.begin(), per_condition.end()) - per_condition.begin());
-            r.warnings.push_back("few trials for this code: " + std::to_string(r.distinct_responses) +
-                                 " distinct responses, but condition '" + kept[c] + "' has only " + std::to_string(fewest) +
-                                 " trials; the estimators disagree by " + format_fixed(spread_of_corrected(r.info_bits), 3) +
-                                 " bits and the interval spans them");
+            const bool all_equal = std::all_of(per_condition.begin(), per_condition.end(), [&](std::size_t n) { return n == fewest; });
+            r.warnings.push_back("few trials for this code: " + std::to_string(r.distinct_responses) + " distinct responses, but " +
+                                 (all_equal ? std::string("every condition has only ") : "condition '" + kept[c] + "' has only ") +
+                                 std::to_string(fewest) + " trials; the estimators disagree by " +
+                                 format_fixed(spread_of_corrected(r.info_bits), 3) + " bits and the interval spans them");
         }
         if (q.response.code != response_code::spike_count) {
             const double letters = (r.window.second - r.window.first) / q.response.bin_width;

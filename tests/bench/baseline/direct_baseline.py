@@ -191,7 +191,7 @@ def estimate(letters, bin_width, opt, seed):
     if trials < 8:
         raise SystemExit("the direct method needs at least 8 trials")
     if bins < opt.letters_max + 1:
-        raise SystemExit(f"trials hold {bins} bins; words of {opt.letters_max} letters need {opt.letters_max + 1}")
+        raise SystemExit(f"trials hold {bins} whole bins; words of up to {opt.letters_max} letters need at least {opt.letters_max + 1}")
     splits = nested_splits(trials, opt.splits, seed)
     # members[s][i]: the trials of subset i (0 full, 1-2 halves, 3-6 quarters, 7-14 eighths) of split s
     members, sizes = [], []

@@ -114,7 +114,7 @@ def make():
         out.write(random.Random(1).randbytes(3000))
     case("garbage.bin", "neither", "")
     open(path("empty.h5"), "wb").close()
-    case("empty.h5", "neither", "")
+    case("empty.h5", "empty file", "")
 
     # ---- the native layout ----
     native("integer-spikes.h5", lambda f: replace(f, "units/u1/spike_times", data=np.array([1, 2], dtype=np.int32)))

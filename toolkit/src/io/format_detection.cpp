@@ -55,6 +55,10 @@ detected_format detect_hdf5(const std::string& path, const std::string& head) {
 detected_format detect_format(const std::string& path) {
     require_readable_file(path, "recording file", "a");
     const std::string head = head_of(path, 4096);
+    if (head.empty()) {
+        throw input_error(path, "", "a recording: HDF5 (native layout, NWB 2.x or MATLAB 7.3 MAT-file) or a spikes CSV",
+                          "an empty file (0 bytes)");
+    }
     if (hdf5::has_signature(path)) return detect_hdf5(path, head);
     if (starts_with(head, mat73_header)) {
         throw input_error(path, "", "a MATLAB 7.3 MAT-file: its header followed by HDF5 data",

@@ -6,6 +6,7 @@
 #include <cstring>
 #include <functional>
 #include <optional>
+#include <regex>
 #include <limits>
 
 namespace rastrum::hdf5 {
@@ -153,6 +154,13 @@ std::string library_message(const H5::Exception& e) {
     std::string message = std::move(captured_message());
     captured_message().clear();
     if (message.empty()) message = e.getDetailMsg();
+    // The library's words for a file cut short name its internals; say it in the user's terms.
+    static const std::regex truncated(R"(truncated file: eof = (\d+), sblock->base_addr = \d+, stored_eof = (\d+))");
+    std::smatch m;
+    if (std::regex_search(message, m, truncated)) {
+        return "truncated file: it holds " + m[1].str() + " bytes of the " + m[2].str() +
+               " its header declares (an interrupted copy or download?)";
+    }
     return message;
 }
 
