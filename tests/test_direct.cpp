@@ -31,6 +31,16 @@ frozen_bins_spec independent_bins(std::vector<double> rates, double modulation, 
     return spec;
 }
 
+poisson_spec one_poisson_unit(std::size_t trials, double duration, double rate, double modulation, std::uint64_t seed) {
+    poisson_spec spec;
+    spec.session.trials = trials;
+    spec.session.duration = duration;
+    spec.rates_hz = {rate};
+    spec.modulations = {modulation};
+    spec.seed = seed;
+    return spec;
+}
+
 }  // namespace
 
 // Independent bins with frozen spike probabilities p_t: words of L letters carry exactly
@@ -91,13 +101,7 @@ TEST(direct, homogeneous_firing_carries_no_information) {
 // which the "sparse" caution must say; at many spikes per position it must not appear. The
 // threshold and the sizes of the bias are measured in notes/methods.md, "Sparse bins".
 TEST(direct, sparse_bins_carry_a_caution_and_dense_ones_none) {
-    poisson_spec spec;
-    spec.session.trials = 20;
-    spec.session.duration = 2.0;
-    spec.rates_hz = {10};
-    spec.modulations = {0.0};
-    spec.seed = 4;
-    const auto synth = make_poisson(spec);
+    const auto synth = make_poisson(one_poisson_unit(20, 2.0, 10, 0.0, 4));
     auto has_sparse = [](const direct_estimate& e) {
         for (const auto& w: e.warnings) {
             if (w.rfind("sparse: ", 0) == 0) return true;
@@ -119,13 +123,8 @@ TEST(direct, sparse_bins_carry_a_caution_and_dense_ones_none) {
 // to 1 ms. At 0.5 ms the 150 trials hold about one spike per bin position, too few for any bias
 // correction: there the estimate must carry the undersampling caution instead.
 TEST(direct, inhomogeneous_poisson_approaches_single_spike_information) {
-    poisson_spec spec;
-    spec.session.trials = 150;
-    spec.session.duration = 8.0;
-    spec.rates_hz = {15};
-    spec.modulations = {1.0};
+    poisson_spec spec = one_poisson_unit(150, 8.0, 15, 1.0, 8);
     spec.correlation_ms = 20;
-    spec.seed = 8;
     const auto synth = make_poisson(spec);
     const auto& truth = synth.truth[0].values;
     const double limit = truth.at("single_spike_info_rate_bits_per_s");
