@@ -1,7 +1,10 @@
 #include "loader_checks.hpp"
 
+#include <rastrum/random.hpp>
+
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <filesystem>
 
 namespace rastrum::testing {
@@ -58,6 +61,24 @@ recording invented_recording() {
     rec.trial_start = {0.0, 1.0, 2.0, 3.1};
     rec.trial_stop = {0.9, 2.0, 2.9, 4.0};
     rec.stimulus = {"Grüße", "7", "a, \"quoted\"", "Grüße"};
+    return rec;
+}
+
+recording random_units(std::size_t units, std::size_t spikes_each, double trial_length, bool labelled,
+                       std::uint64_t seed) {
+    recording rec;
+    for (std::size_t k = 0; k < 10; ++k) {
+        rec.trial_start.push_back(static_cast<double>(k));
+        rec.trial_stop.push_back(static_cast<double>(k) + trial_length);
+        if (labelled) rec.stimulus.push_back(k % 2 == 0 ? "a" : "b");
+    }
+    random_stream rng(seed);
+    for (std::size_t u = 0; u < units; ++u) {
+        unit_spikes unit{"u" + std::to_string(u + 1), std::vector<double>(spikes_each)};
+        for (double& t: unit.spike_times) t = 10.0 * rng.uniform();
+        std::sort(unit.spike_times.begin(), unit.spike_times.end());
+        rec.units.push_back(std::move(unit));
+    }
     return rec;
 }
 

@@ -6,6 +6,7 @@
 
 #include <H5Cpp.h>
 
+#include <cstdint>
 #include <functional>
 #include <string>
 
@@ -31,6 +32,11 @@ recording invented_recording();
 
 /// The same recording with integer labels and times that float32 holds exactly (binary fractions).
 recording binary_fraction_recording();
+
+/// `units` units u1, u2, ... of `spikes_each` sorted uniform times in [0, 10) s over 10 trials
+/// [k, k + trial_length) s, labelled a, b, a, ... when `labelled`; drawn from `seed`.
+recording random_units(std::size_t units, std::size_t spikes_each, double trial_length, bool labelled,
+                       std::uint64_t seed);
 
 /// Units (ids and spike times), trials and labels equal, exactly.
 void expect_same_recording(const recording& a, const recording& b);

@@ -92,22 +92,7 @@ TEST(LargeRecording, AnalysedWithinAMemoryLimitTheWholeFileWouldBreak) {
 namespace {
 
 // 30 units of 50 random spikes over 10 labelled trials.
-recording thirty_units() {
-    recording rec;
-    for (std::size_t k = 0; k < 10; ++k) {
-        rec.trial_start.push_back(static_cast<double>(k));
-        rec.trial_stop.push_back(static_cast<double>(k) + 0.9);
-        rec.stimulus.push_back(k % 2 == 0 ? "a" : "b");
-    }
-    rastrum::random_stream rng(3);
-    for (std::size_t u = 0; u < 30; ++u) {
-        rastrum::unit_spikes unit{"u" + std::to_string(u + 1), std::vector<double>(50)};
-        for (double& t: unit.spike_times) t = 10.0 * rng.uniform();
-        std::sort(unit.spike_times.begin(), unit.spike_times.end());
-        rec.units.push_back(std::move(unit));
-    }
-    return rec;
-}
+recording thirty_units() { return random_units(30, 50, 0.9, true, 3); }
 
 void expect_late_failure_leaves_nothing(const std::string& folder, const std::string& input,
                                         const std::string& message) {

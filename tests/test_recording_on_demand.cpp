@@ -8,7 +8,6 @@
 
 #include <rastrum/aligned_units.hpp>
 #include <rastrum/parallel.hpp>
-#include <rastrum/random.hpp>
 #include <rastrum/recording_hdf5.hpp>
 #include <rastrum/recording_source.hpp>
 
@@ -205,21 +204,7 @@ TEST(OnDemandDamaged, StructuralFaultsOfAUnitAreFoundAtOpening) {
 namespace {
 
 // 40 units of 200 random spikes over 10 trials, written in the native layout.
-recording many_units() {
-    recording rec;
-    for (std::size_t k = 0; k < 10; ++k) {
-        rec.trial_start.push_back(static_cast<double>(k));
-        rec.trial_stop.push_back(static_cast<double>(k) + 0.8);
-    }
-    rastrum::random_stream rng(7);
-    for (std::size_t u = 0; u < 40; ++u) {
-        rastrum::unit_spikes unit{"u" + std::to_string(u + 1), {}};
-        for (int i = 0; i < 200; ++i) unit.spike_times.push_back(10.0 * rng.uniform());
-        std::sort(unit.spike_times.begin(), unit.spike_times.end());
-        rec.units.push_back(unit);
-    }
-    return rec;
-}
+recording many_units() { return random_units(40, 200, 0.8, false, 7); }
 
 }  // namespace
 
