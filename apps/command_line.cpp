@@ -364,7 +364,7 @@ int analyse_and_write(int argc, char** argv, const recording_source& source, uns
                   << ", " << origin.started_utc << " to " << origin.finished_utc << ")\n";
     }
     for (const auto& p: parts) {
-        if (p.first->target().method != output_method::standard_output) note(out.quiet, "wrote " + p.first->target().path);
+        if (p.first->target().path != "-") note(out.quiet, "wrote " + p.first->target().path);
     }
     return 0;
 }

@@ -30,6 +30,28 @@ bool names_an_open_file(const std::string& path) {
            path == "/dev/stderr" || path == "/dev/stdin";
 }
 
+// The descriptor `path` names when it is one of this process's own (/dev/stdout, /dev/stderr, and
+// /proc/PID/fd/N, which /dev/fd/N and /proc/self/fd/N become with their folder made canonical);
+// -1 otherwise.
+int own_descriptor(const std::string& path) {
+    if (path == "/dev/stdout") return 1;
+    if (path == "/dev/stderr") return 2;
+    if (path == "/dev/stdin") return 0;  // refused below unless it was opened for writing
+    const std::string prefix = "/proc/" + std::to_string(::getpid()) + "/fd/";
+    if (path.compare(0, prefix.size(), prefix) != 0) return -1;
+    const std::string number = path.substr(prefix.size());
+    if (number.empty() || number.size() > 9 || number.find_first_not_of("0123456789") != std::string::npos) return -1;
+    return std::stoi(number);
+}
+
+// A stream to descriptor `fd`, which must be open for writing.
+output_target descriptor_target(const std::string& path, const std::string& final_path, int fd) {
+    const int flags = ::fcntl(fd, F_GETFL);
+    if (flags < 0) throw output_error(path, "not an open file of this process (descriptor " + std::to_string(fd) + ")");
+    if ((flags & O_ACCMODE) == O_RDONLY) throw output_error(path, "descriptor " + std::to_string(fd) + " is open for reading only");
+    return {path, final_path, output_method::stream, fd};
+}
+
 // `path` with its folder made canonical (every link on the way resolved), the last part kept. A
 // folder that is missing or cannot be reached is the file system's answer, not a usage error.
 fs::path with_canonical_folder(const fs::path& path, const std::string& shown) {
@@ -84,16 +106,16 @@ constexpr const char* scratch_name = "rastrum-scratch";
 output_target output_target::replacing(const std::string& path) { return {path, path, output_method::replace}; }
 
 bool output_target::is_standard_output() const {
-    if (method == output_method::standard_output) return true;
     if (method != output_method::stream) return false;
+    if (descriptor == 1) return true;
     struct stat named {}, out {};
-    return ::stat(final_path.c_str(), &named) == 0 && ::fstat(1, &out) == 0 && named.st_dev == out.st_dev &&
-           named.st_ino == out.st_ino;
+    const int found = descriptor >= 0 ? ::fstat(descriptor, &named) : ::stat(final_path.c_str(), &named);
+    return found == 0 && ::fstat(1, &out) == 0 && named.st_dev == out.st_dev && named.st_ino == out.st_ino;
 }
 
 output_target resolve_output(const std::string& path, const std::string& option) {
     if (path.empty()) throw usage_error(option + ": empty path; name a file, or '-' for standard output");
-    if (path == "-") return {path, path, output_method::standard_output};
+    if (path == "-") return descriptor_target(path, "standard output", 1);
     if (fs::path(path).filename().empty()) throw usage_error(option + " " + path + " names a folder; name a file");
     // The links of the last part are followed one at a time: a link's target is what a rename
     // must replace, so that the link itself is kept.
@@ -108,6 +130,7 @@ output_target resolve_output(const std::string& path, const std::string& option)
         p = with_canonical_folder(target.is_absolute() ? target : p.parent_path() / target, path);
         open_file = names_an_open_file(p.string());
     }
+    if (const int fd = own_descriptor(p.string()); fd >= 0) return descriptor_target(path, p.string(), fd);
     struct stat st {};
     if (::stat(p.c_str(), &st) != 0) {
         const int code = errno;
@@ -127,9 +150,19 @@ output_target resolve_output(const std::string& path, const std::string& option)
 
 void check_output_targets(const std::vector<output_target>& targets, const std::vector<std::string>& inputs) {
     std::set<fs::path> input_paths, replaced;
+    std::set<std::pair<dev_t, ino_t>> input_files;  // also reached by another name: a hard link, /dev/fd/N
     std::error_code ec;
-    for (const auto& in: inputs) input_paths.insert(fs::weakly_canonical(in, ec));
+    for (const auto& in: inputs) {
+        input_paths.insert(fs::weakly_canonical(in, ec));
+        struct stat st {};
+        if (::stat(in.c_str(), &st) == 0 && S_ISREG(st.st_mode)) input_files.emplace(st.st_dev, st.st_ino);
+    }
     for (const auto& t: targets) {
+        struct stat st {};
+        const int found = t.descriptor >= 0 ? ::fstat(t.descriptor, &st) : ::stat(t.final_path.c_str(), &st);
+        if (found == 0 && input_files.count({st.st_dev, st.st_ino})) {
+            throw usage_error("output " + t.path + " would overwrite an input");
+        }
         if (t.method != output_method::replace) continue;
         const fs::path final_path = fs::weakly_canonical(t.final_path, ec);
         if (input_paths.count(final_path)) throw usage_error("output " + t.path + " would overwrite an input");
@@ -146,7 +179,7 @@ output_file::output_file(output_target target, content kind): target_(std::move(
         create_temporary(temporary_, target_.path, "");
         return;
     }
-    if (target_.method == output_method::stream && ::access(target_.final_path.c_str(), W_OK) != 0) {
+    if (target_.descriptor < 0 && ::access(target_.final_path.c_str(), W_OK) != 0) {
         throw output_error(target_.path, system_reason(errno));
     }
     if (kind_ == content::by_path) {
@@ -184,17 +217,15 @@ void output_file::write_temporary(const std::string& text) {
 }
 
 void output_file::send(const std::string* text) {
-    int fd = 1;
-    if (target_.method == output_method::standard_output) {
+    const bool own = target_.descriptor >= 0;
+    int fd = target_.descriptor;
+    if (own) {
         std::cout.flush();  // what the command printed before comes first
     } else {
-        // Appending: behind /dev/stdout may be a file the shell opened, whose earlier lines stay.
+        // Appending, never truncating: what a FIFO's or device's other writers wrote stays.
         fd = ::open(target_.final_path.c_str(), O_WRONLY | O_APPEND | O_NOCTTY | O_CLOEXEC);
         if (fd < 0) throw output_error(target_.path, system_reason(errno));
     }
-    const auto done = [&] {
-        if (fd != 1) close_checked(fd, target_.path);
-    };
     try {
         if (text) {
             write_all(fd, text->data(), text->size(), target_.path);
@@ -220,10 +251,10 @@ void output_file::send(const std::string* text) {
             ::close(in);
         }
     } catch (...) {
-        if (fd != 1) ::close(fd);
+        if (!own) ::close(fd);
         throw;
     }
-    done();
+    if (!own) close_checked(fd, target_.path);
     discard();  // the scratch file, if any
     finished_ = true;
 }

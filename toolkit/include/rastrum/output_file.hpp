@@ -5,7 +5,8 @@
 ///   absent, a regular file, or a symlink to one   a temporary beside the file, renamed over it (a
 ///                                                 symlink's target is replaced, the link kept)
 ///   a character device, a FIFO, "-" (standard     written directly, streaming, with no temporary;
-///   output), /dev/stdout, /dev/fd/N, /proc/...    HDF5 goes through a scratch file (below)
+///   output), /dev/stdout, /dev/fd/N, /proc/...    HDF5 goes through a scratch file (below); the
+///                                                 descriptors themselves for "-" and /dev/fd/N
 ///   a folder, a socket, a block device, "",       usage_error, before any work
 ///   a name in /dev that does not exist
 ///   in a folder that is missing or unwritable     output_error (exit 6), before any work
@@ -23,19 +24,22 @@
 namespace rastrum {
 
 enum class output_method {
-    replace,          ///< a temporary renamed over final_path
-    stream,           ///< final_path opened and written directly (appending)
-    standard_output,  ///< "-": this process's standard output
+    replace,  ///< a temporary renamed over final_path
+    stream,   ///< written directly: to `descriptor`, or to final_path opened for appending
 };
 
 struct output_target {
     std::string path;        ///< as the user named it, for messages
     std::string final_path;  ///< replace: the file a rename replaces (a symlink's target); stream: what is opened
     output_method method = output_method::replace;
+    /// A stream that is a file descriptor this process holds ("-" and /dev/stdout: 1, /dev/stderr:
+    /// 2, /dev/fd/N and /proc/self/fd/N: N), written as it is, never opened again: so the shell's
+    /// redirection keeps its place and mode, and works for a user who could not open its file.
+    int descriptor = -1;
 
     /// A path the program chose itself (a manifest, a file in its own folder): always replaced.
     static output_target replacing(const std::string& path);
-    /// "-", or a stream that is the very file this process's standard output is.
+    /// A stream that is this process's standard output, or the very file it is.
     bool is_standard_output() const;
 };
 

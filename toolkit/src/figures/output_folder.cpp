@@ -130,7 +130,13 @@ void output_folder::write(const std::vector<std::pair<std::string, std::string>>
         write_into_folder(folder_, files);
         return;
     }
-    write_texts_atomically(placed(temporary_, files));
+    try {
+        write_texts_atomically(placed(temporary_, files));
+    } catch (const output_error& e) {
+        // Named as the user will look for it, not inside the temporary folder.
+        const std::string inside = e.path.compare(0, temporary_.size(), temporary_) == 0 ? e.path.substr(temporary_.size()) : "";
+        throw output_error(folder_ + inside, e.reason);
+    }
     const temporaries_held hold;  // the rename, or (after a signal) the removal, not both
     std::error_code ec;
     fs::rename(temporary_, folder_, ec);

@@ -131,7 +131,7 @@ void recording_hdf5_writer::guarded(F&& f) {
     try {
         f();
     } catch (const H5::Exception& e) {
-        throw output_error(state_->out.target().path, hdf5::library_message(e));
+        throw output_error(state_->out.target().path, hdf5::write_failure(e, state_->out.path_to_write()));
     }
 }
 

@@ -117,7 +117,7 @@ void write_results_hdf5(const std::string& path, const nlohmann::ordered_json& r
         for (const auto& c: curves) write_series(file, analysis, c);
         file.close();
     } catch (const H5::Exception& e) {
-        throw output_error(shown_as.empty() ? path : shown_as, hdf5::library_message(e));
+        throw output_error(shown_as.empty() ? path : shown_as, hdf5::write_failure(e, path));
     }
 }
 
