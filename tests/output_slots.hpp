@@ -32,6 +32,6 @@ const std::string& conditions_recording();
 const std::string& frozen_recording();
 
 /// Single-quoted for sh.
-std::string quoted(const std::string& text);
+std::string shell_quoted(const std::string& text);
 
 }  // namespace rastrum::testing

@@ -91,7 +91,7 @@ void streamed_into_a_fifo(const output_slot& slot, const test_user& user, const 
     if (slot.name == "synth --out" || slot.name == "convert --out") {
         // The recording that went through the FIFO reads back.
         write_text(folder + "/copy.h5", got);
-        const auto survey = run_rastrum("survey " + quoted(folder + "/copy.h5"));
+        const auto survey = run_rastrum("survey " + shell_quoted(folder + "/copy.h5"));
         EXPECT_EQ(survey.exit_code, 0) << survey.err;
     }
 }
@@ -165,7 +165,7 @@ TEST(cli_outputs, a_missing_name_in_dev_is_a_usage_error) {
     std::string why_not;
     const auto user = unprivileged_user(why_not);
     if (!user) GTEST_SKIP() << why_not;
-    const auto r = run_rastrum_via(user->runner, "survey " + quoted(conditions_recording()) + " --json /dev/rastrum-no-such-device");
+    const auto r = run_rastrum_via(user->runner, "survey " + shell_quoted(conditions_recording()) + " --json /dev/rastrum-no-such-device");
     EXPECT_EQ(r.exit_code, 2) << r.err;
     EXPECT_NE(r.err.find("makes no files in /dev"), std::string::npos) << r.err;
     EXPECT_FALSE(fs::exists("/dev/rastrum-no-such-device"));
@@ -178,7 +178,7 @@ TEST(cli_outputs, an_output_that_is_an_input_by_another_name_is_refused) {
     const std::string copy = folder + "/copy.h5";
     fs::copy_file(conditions_recording(), copy);
     const std::string before = read_file(copy);
-    const auto r = run_rastrum("survey " + quoted(copy) + " --json /dev/fd/3 3>>" + quoted(copy));
+    const auto r = run_rastrum("survey " + shell_quoted(copy) + " --json /dev/fd/3 3>>" + shell_quoted(copy));
     EXPECT_EQ(r.exit_code, 2) << r.err;
     EXPECT_NE(r.err.find("would overwrite an input"), std::string::npos) << r.err;
     EXPECT_EQ(read_file(copy), before);
@@ -192,18 +192,18 @@ TEST(cli_outputs, every_kind_of_figures_folder) {
     std::string why_not;
     if (const auto user = unprivileged_user(why_not)) users.push_back(*user);
     const std::string folder = open_folder("outputs-figures-input");
-    const auto made = run_rastrum("direct " + quoted(frozen_recording()) + " --bin-ms 10 --letters 1-2 --splits 2 --quiet --json " +
-                                  quoted(folder + "/d.json"));
+    const auto made = run_rastrum("direct " + shell_quoted(frozen_recording()) + " --bin-ms 10 --letters 1-2 --splits 2 --quiet --json " +
+                                  shell_quoted(folder + "/d.json"));
     ASSERT_EQ(made.exit_code, 0) << made.err;
-    const std::string figures = "figures " + quoted(folder + "/d.json") + " --quiet --out ";
+    const std::string figures = "figures " + shell_quoted(folder + "/d.json") + " --quiet --out ";
     for (const auto& user: users) {
         SCOPED_TRACE(user.name);
         const std::string f = open_folder("outputs-figures-" + std::string(user.runner.empty() ? "self" : "other"));
-        EXPECT_EQ(run_rastrum_via(user.runner, figures + quoted(f + "/new")).exit_code, 0);
+        EXPECT_EQ(run_rastrum_via(user.runner, figures + shell_quoted(f + "/new")).exit_code, 0);
         EXPECT_TRUE(fs::is_regular_file(f + "/new/index.html"));
-        EXPECT_EQ(run_rastrum_via(user.runner, figures + quoted(f + "/new")).exit_code, 0) << "again, into its own folder";
+        EXPECT_EQ(run_rastrum_via(user.runner, figures + shell_quoted(f + "/new")).exit_code, 0) << "again, into its own folder";
         fs::create_symlink("new", f + "/link");
-        EXPECT_EQ(run_rastrum_via(user.runner, figures + quoted(f + "/link")).exit_code, 0);
+        EXPECT_EQ(run_rastrum_via(user.runner, figures + shell_quoted(f + "/link")).exit_code, 0);
         EXPECT_TRUE(fs::is_symlink(f + "/link"));
         EXPECT_TRUE(temporaries_in(f).empty());
         write_text(f + "/file", "mine\n");
@@ -212,7 +212,7 @@ TEST(cli_outputs, every_kind_of_figures_folder) {
         std::vector<std::string> not_folders = {"file", "fifo", "socket"};
         if (make_null_device(f + "/device")) not_folders.push_back("device");
         for (const auto& name: not_folders) {
-            const auto r = run_rastrum_via(user.runner, figures + quoted(f + "/" + name));
+            const auto r = run_rastrum_via(user.runner, figures + shell_quoted(f + "/" + name));
             EXPECT_EQ(r.exit_code, 2) << name << ": " << r.err;
             EXPECT_NE(r.err.find("not a folder"), std::string::npos) << r.err;
         }

@@ -43,7 +43,7 @@ std::string write_plan(const std::string& folder, const std::string& output) {
 std::string direct_result() {
     static const std::string path = [] {
         const std::string p = open_folder("write-errors-result") + "/d.json";
-        const auto r = run_rastrum("direct " + quoted(frozen_recording()) + " --bin-ms 10 --letters 1-2 --splits 2 --quiet --json " + quoted(p));
+        const auto r = run_rastrum("direct " + shell_quoted(frozen_recording()) + " --bin-ms 10 --letters 1-2 --splits 2 --quiet --json " + shell_quoted(p));
         EXPECT_EQ(r.exit_code, 0) << r.err;
         return p;
     }();
@@ -80,12 +80,12 @@ TEST(cli_write_errors, an_unwritable_folder_exits_6_before_the_input_is_read) {
     fs::permissions(locked, fs::perms::all & ~(fs::perms::group_write | fs::perms::others_write | fs::perms::owner_write));
     fs::permissions(locked + "/report", fs::perms::all & ~(fs::perms::group_write | fs::perms::others_write | fs::perms::owner_write));
     for (const std::string& out: {locked + "/new", locked + "/report"}) {
-        const auto r = run_rastrum_via(user->runner, "figures " + quoted(direct_result()) + " --out " + quoted(out));
+        const auto r = run_rastrum_via(user->runner, "figures " + shell_quoted(direct_result()) + " --out " + shell_quoted(out));
         expect_refused(r, out, "Permission denied");
     }
     EXPECT_TRUE(fs::is_empty(locked + "/report"));
     const std::string plan_folder = open_folder("write-errors-denied-batch");
-    const auto batch = run_rastrum_via(user->runner, "batch " + quoted(write_plan(plan_folder, locked + "/results")));
+    const auto batch = run_rastrum_via(user->runner, "batch " + shell_quoted(write_plan(plan_folder, locked + "/results")));
     expect_refused(batch, locked + "/results", "Permission denied");
     fs::permissions(locked + "/report", fs::perms::all);
     fs::permissions(locked, fs::perms::all);
@@ -100,7 +100,7 @@ TEST(cli_write_errors, a_missing_folder_exits_6) {
         expect_refused(r, first_output(slot, folder + "/no/such"), "folder " + folder + "/no/such does not exist");
         EXPECT_FALSE(fs::exists(folder + "/no"));
     }
-    const auto figures = run_rastrum("figures " + quoted(direct_result()) + " --out " + quoted(folder + "/no/report"));
+    const auto figures = run_rastrum("figures " + shell_quoted(direct_result()) + " --out " + shell_quoted(folder + "/no/report"));
     expect_refused(figures, folder + "/no/report", "does not exist");
 }
 
@@ -122,10 +122,10 @@ TEST(cli_write_errors, a_full_file_system_exits_6_and_keeps_the_old_output) {
     const std::string mount = open_folder("write-errors-full-others") + "/fs";
     const small_file_system full(mount, {"64k", {}, false, true});
     if (!full.mounted()) GTEST_SKIP() << full.why_not();
-    const auto figures = run_rastrum("figures " + quoted(direct_result()) + " --out " + quoted(mount + "/report"));
+    const auto figures = run_rastrum("figures " + shell_quoted(direct_result()) + " --out " + shell_quoted(mount + "/report"));
     expect_refused(figures, mount + "/report", "No space left on device");
     EXPECT_FALSE(fs::exists(mount + "/report"));
-    const auto batch = run_rastrum("batch " + quoted(write_plan(open_folder("write-errors-full-batch"), mount + "/results")));
+    const auto batch = run_rastrum("batch " + shell_quoted(write_plan(open_folder("write-errors-full-batch"), mount + "/results")));
     expect_refused(batch, mount + "/results", "No space left on device");
     EXPECT_TRUE(temporaries_in(mount).empty());
 }
@@ -142,6 +142,6 @@ TEST(cli_write_errors, a_read_only_file_system_exits_6_before_any_work) {
         expect_refused(r, first_output(slot, mount), "Read-only file system");
         EXPECT_EQ(read_file(mount + "/" + slot.file_name), "old\n");
     }
-    const auto figures = run_rastrum("figures " + quoted(direct_result()) + " --out " + quoted(mount + "/report"));
+    const auto figures = run_rastrum("figures " + shell_quoted(direct_result()) + " --out " + shell_quoted(mount + "/report"));
     expect_refused(figures, mount + "/report", "Read-only file system");
 }
