@@ -43,7 +43,8 @@ void replaced_through_a_link(const output_slot& slot, const test_user& user, con
     const auto r = run_rastrum_via(user.runner, slot.command(folder + "/" + slot.file_name));
     EXPECT_EQ(r.exit_code, 0) << r.err;
     EXPECT_TRUE(fs::is_symlink(folder + "/" + slot.file_name));
-    EXPECT_EQ(fs::read_symlink(folder + "/" + slot.file_name), target);
+    std::error_code ec;
+    EXPECT_EQ(fs::read_symlink(folder + "/" + slot.file_name, ec), target);
     EXPECT_TRUE(looks_whole(slot, read_file(folder + "/" + target)));
     EXPECT_TRUE(temporaries_in(folder).empty());
 }
@@ -96,9 +97,13 @@ void streamed_into_a_fifo(const output_slot& slot, const test_user& user, const 
     }
 }
 
-// '-' and /dev/stdout: the output is all that reaches standard output (the table stays away).
+// '-', /dev/fd/1 and /dev/stdout: the output is all that reaches standard output (the table stays
+// away). /dev/stdout only for an unprivileged user, who could not replace it even where the
+// check is missing (as a version without it did, run as root: the issue behind these tests).
 void sent_to_standard_output(const output_slot& slot, const test_user& user) {
-    for (const std::string name: {"-", "/dev/stdout"}) {
+    std::vector<std::string> names = {"-", "/dev/fd/1"};
+    if (!user.runner.empty() || !running_as_root()) names.push_back("/dev/stdout");
+    for (const std::string& name: names) {
         SCOPED_TRACE(name);
         const auto r = run_rastrum_via(user.runner, slot.command(name));
         EXPECT_EQ(r.exit_code, 0) << r.err;
@@ -185,7 +190,8 @@ TEST(cli_outputs, an_output_that_is_an_input_by_another_name_is_refused) {
 }
 
 // The figures folder: absent (made), an existing one of ours or a link to one (written into, the
-// link kept); a file, FIFO, device or socket in its place, or an empty name: exit 2.
+// link kept), a link to a folder not made yet (made where it points, the link kept); a file, FIFO,
+// device or socket in its place, or an empty name: exit 2.
 TEST(cli_outputs, every_kind_of_figures_folder) {
     std::vector<test_user> users;
     if (const auto root = root_user()) users.push_back(*root);
@@ -205,6 +211,10 @@ TEST(cli_outputs, every_kind_of_figures_folder) {
         fs::create_symlink("new", f + "/link");
         EXPECT_EQ(run_rastrum_via(user.runner, figures + shell_quoted(f + "/link")).exit_code, 0);
         EXPECT_TRUE(fs::is_symlink(f + "/link"));
+        fs::create_symlink("later", f + "/dangling");
+        EXPECT_EQ(run_rastrum_via(user.runner, figures + shell_quoted(f + "/dangling")).exit_code, 0);
+        EXPECT_TRUE(fs::is_symlink(f + "/dangling")) << "the link was replaced by a folder";
+        EXPECT_TRUE(fs::is_regular_file(f + "/later/index.html"));
         EXPECT_TRUE(temporaries_in(f).empty());
         write_text(f + "/file", "mine\n");
         make_fifo(f + "/fifo");

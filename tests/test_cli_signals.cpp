@@ -196,8 +196,12 @@ TEST(cli_signals, a_later_run_removes_stale_temporaries_of_dead_processes_only) 
 
     EXPECT_EQ(run_rastrum("direct " + shell_quoted(in.labelled) + " --bin-ms 20 --letters 1-2 --quiet --json " + shell_quoted(folder + "/d.json")).exit_code, 0);
     EXPECT_EQ(run_rastrum("figures " + shell_quoted(in.result) + " --quiet --out " + shell_quoted(folder + "/report")).exit_code, 0);
+    make_fifo(folder + "/results.h5");  // HDF5 into a FIFO goes through a scratch file in $TMPDIR
+    fifo_reader reader(folder + "/results.h5");
     EXPECT_EQ(run_rastrum_via("env TMPDIR=" + shell_quoted(scratch) + " ",
-                              "direct " + shell_quoted(in.labelled) + " --bin-ms 20 --letters 1-2 --quiet --h5 /dev/null").exit_code, 0);
+                              "direct " + shell_quoted(in.labelled) + " --bin-ms 20 --letters 1-2 --quiet --h5 " +
+                                  shell_quoted(folder + "/results.h5")).exit_code, 0);
+    reader.finish();
     std::vector<std::string> left = temporaries_in(folder);
     std::sort(left.begin(), left.end());
     EXPECT_EQ(left, (std::vector<std::string>{"d.json.tmp-" + alive + "-0", "d.json.tmp-notes", "other.json.tmp-" + dead + "-0"}))

@@ -60,6 +60,21 @@ std::vector<std::pair<std::string, std::string>> placed(const fs::path& folder, 
     return paths;
 }
 
+// Where `folder` leads through symbolic links: a link to a folder not made yet makes the folder
+// where it points, and the link is kept (as for a file, whose link's target is replaced).
+std::string followed(const std::string& folder) {
+    fs::path p = fs::path(folder).lexically_normal();
+    if (p.filename().empty()) p = p.parent_path();
+    for (int hop = 0; hop < 40 && !p.empty(); ++hop) {
+        std::error_code ec;
+        if (!fs::is_symlink(fs::symlink_status(p, ec))) break;
+        const fs::path target = fs::read_symlink(p, ec);
+        if (ec) break;
+        p = (target.is_absolute() ? target : parent_of(p) / target).lexically_normal();
+    }
+    return p.empty() ? folder : p.string();
+}
+
 void write_into_folder(const fs::path& folder, const std::vector<std::pair<std::string, std::string>>& files) {
     const std::set<std::string> ours = manifest_names(folder);
     std::error_code ec;
@@ -94,7 +109,8 @@ void check_output_folder(const std::string& folder, const std::string& option) {
     }
 }
 
-output_folder::output_folder(std::string folder, const std::string& option): folder_(std::move(folder)) {
+output_folder::output_folder(std::string folder, const std::string& option): folder_(followed(folder)) {
+    if (folder.empty()) throw usage_error(option + ": empty folder name");
     check_output_folder(folder_, option);
     std::error_code ec;
     if (fs::exists(fs::path(folder_), ec)) {
