@@ -13,6 +13,7 @@
 #include <set>
 #include <sstream>
 #include <sys/stat.h>
+#include <sys/sysmacros.h>
 #include <sys/wait.h>
 #include <thread>
 #include <unistd.h>
@@ -71,6 +72,17 @@ TEST(output_file, paths_are_classified_by_what_is_there) {
     EXPECT_THROW(resolve_output("", "--json"), usage_error);
     EXPECT_THROW(resolve_output(f + "/no/such.json", "--json"), output_error);
     EXPECT_THROW(resolve_output("/dev/rastrum-no-such-device", "--json"), usage_error);
+}
+
+// A block device is refused before anything is opened (resolve_output writes nothing): made in the
+// test's folder, as root only.
+TEST(output_file, a_block_device_is_refused) {
+    const std::string f = fresh("block");
+    if (::mknod((f + "/disk").c_str(), S_IFBLK | 0600, makedev(7, 0)) != 0) GTEST_SKIP() << "cannot make a device node here (root only)";
+    EXPECT_THROW(resolve_output(f + "/disk", "--h5"), usage_error);
+    struct stat st {};
+    EXPECT_TRUE(::stat((f + "/disk").c_str(), &st) == 0 && S_ISBLK(st.st_mode));
+    fs::remove(f + "/disk");
 }
 
 TEST(output_file, outputs_finished_together_change_all_or_none) {
