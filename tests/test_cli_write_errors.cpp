@@ -145,3 +145,14 @@ TEST(cli_write_errors, a_read_only_file_system_exits_6_before_any_work) {
     const auto figures = run_rastrum("figures " + shell_quoted(direct_result()) + " --out " + shell_quoted(mount + "/report"));
     expect_refused(figures, mount + "/report", "Read-only file system");
 }
+
+// The code is documented where users look: the overview, each command's help, batch's own codes.
+TEST(cli_write_errors, help_documents_exit_code_6) {
+    for (const std::string command: {"--help", "direct --help", "survey --help", "figures --help", "batch --help"}) {
+        const auto r = run_rastrum(command);
+        EXPECT_EQ(r.exit_code, 0) << command;
+        EXPECT_NE(r.out.find("6 an output cannot be written"), std::string::npos) << command << "\n" << r.out;
+        EXPECT_NE(r.out.find("128 + N"), std::string::npos) << command;
+    }
+    EXPECT_NE(run_rastrum("batch --help").out.find("6 the batch cannot write its output folder"), std::string::npos);
+}
