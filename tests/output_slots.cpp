@@ -6,6 +6,7 @@
 #include <nlohmann/json.hpp>
 
 #include <filesystem>
+#include <fstream>
 #include <stdexcept>
 
 namespace rastrum::testing {
@@ -68,6 +69,14 @@ std::vector<output_slot> file_output_slots(const std::string& input) {
                      [labelled](const std::string& out) { return "convert " + labelled + " --overwrite --out " + shell_quoted(out); },
                      false});
     return slots;
+}
+
+std::string stiminfo_plan(const std::string& folder, const std::string& output) {
+    std::filesystem::copy_file(conditions_recording(), folder + "/c.h5");
+    const std::string plan = folder + "/plan.ini";
+    std::ofstream(plan) << "output = " << output
+                        << "\n[inputs]\nfiles = c.h5\n[stiminfo]\nwindow-ms = 0:200\ncode = count\nnull-shuffles = 4\nbootstrap = 4\n";
+    return plan;
 }
 
 bool looks_whole(const output_slot& slot, const std::string& bytes) {

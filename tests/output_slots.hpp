@@ -31,6 +31,10 @@ bool looks_whole(const output_slot& slot, const std::string& bytes);
 const std::string& conditions_recording();
 const std::string& frozen_recording();
 
+/// A batch plan in `folder` running stiminfo on a copy of conditions_recording() (c.h5), its results
+/// in `output`. Returns the plan's path.
+std::string stiminfo_plan(const std::string& folder, const std::string& output);
+
 /// Single-quoted for sh.
 std::string shell_quoted(const std::string& text);
 

@@ -11,6 +11,7 @@
 #include <gtest/gtest.h>
 
 #include <filesystem>
+#include <functional>
 #include <fstream>
 #include <sys/stat.h>
 
@@ -230,4 +231,31 @@ TEST(cli_outputs, every_kind_of_figures_folder) {
         EXPECT_TRUE(fs::is_fifo(f + "/fifo") && is_socket(f + "/socket"));
         EXPECT_EQ(run_rastrum_via(user.runner, figures + "''").exit_code, 2);
     }
+}
+
+// The batch's outputs: its folder must be a folder (exit 2 for a file, FIFO or socket in its
+// place); in it, something other than a file of its own where a task's result goes (a FIFO, which
+// would stop the task until read; a link) fails that task, which names it, and nothing waits.
+TEST(cli_outputs, batch_outputs_are_its_own_files) {
+    const std::string folder = open_folder("outputs-batch");
+    const std::string plan = stiminfo_plan(folder, "results");
+    for (const auto& make: std::vector<std::function<void(const std::string&)>>{
+             [](const std::string& p) { std::ofstream(p) << "mine\n"; }, make_fifo, make_socket}) {
+        fs::remove(folder + "/results");
+        make(folder + "/results");
+        const auto r = run_rastrum("batch " + shell_quoted(plan));
+        EXPECT_EQ(r.exit_code, 2) << r.err;
+        EXPECT_NE(r.err.find("is not a folder"), std::string::npos) << r.err;
+    }
+    fs::remove(folder + "/results");
+    ASSERT_EQ(run_rastrum("batch " + shell_quoted(plan) + " --quiet").exit_code, 0);
+    fs::remove(folder + "/results/c/stiminfo.json");
+    make_fifo(folder + "/results/c/stiminfo.json");
+    fs::remove(folder + "/results/c/stiminfo.csv");
+    fs::create_symlink("../elsewhere.csv", folder + "/results/c/stiminfo.csv");
+    const auto r = run_rastrum_limited("batch " + shell_quoted(plan) + " --force", 120, 4UL << 20);
+    EXPECT_EQ(r.exit_code, 5) << r.err;
+    EXPECT_NE(r.err.find("results/c/stiminfo.json is not a regular file"), std::string::npos) << r.err;
+    EXPECT_TRUE(fs::is_fifo(folder + "/results/c/stiminfo.json"));
+    EXPECT_FALSE(fs::exists(folder + "/results/elsewhere.csv"));
 }

@@ -31,15 +31,6 @@ std::string first_output(const output_slot& slot, const std::string& folder) {
     return slot.path_is_named ? folder + "/" + slot.file_name : folder + "/s.h5";
 }
 
-// A plan running stiminfo on the small labelled recording into `output`.
-std::string write_plan(const std::string& folder, const std::string& output) {
-    fs::copy_file(conditions_recording(), folder + "/c.h5");
-    const std::string plan = folder + "/plan.ini";
-    std::ofstream(plan) << "output = " << output
-                        << "\n[inputs]\nfiles = c.h5\n[stiminfo]\nwindow-ms = 0:200\ncode = count\nnull-shuffles = 4\nbootstrap = 4\n";
-    return plan;
-}
-
 std::string direct_result() {
     static const std::string path = [] {
         const std::string p = open_folder("write-errors-result") + "/d.json";
@@ -85,7 +76,7 @@ TEST(cli_write_errors, an_unwritable_folder_exits_6_before_the_input_is_read) {
     }
     EXPECT_TRUE(fs::is_empty(locked + "/report"));
     const std::string plan_folder = open_folder("write-errors-denied-batch");
-    const auto batch = run_rastrum_via(user->runner, "batch " + shell_quoted(write_plan(plan_folder, locked + "/results")));
+    const auto batch = run_rastrum_via(user->runner, "batch " + shell_quoted(stiminfo_plan(plan_folder, locked + "/results")));
     expect_refused(batch, locked + "/results", "Permission denied");
     fs::permissions(locked + "/report", fs::perms::all);
     fs::permissions(locked, fs::perms::all);
@@ -125,7 +116,7 @@ TEST(cli_write_errors, a_full_file_system_exits_6_and_keeps_the_old_output) {
     const auto figures = run_rastrum("figures " + shell_quoted(direct_result()) + " --out " + shell_quoted(mount + "/report"));
     expect_refused(figures, mount + "/report", "No space left on device");
     EXPECT_FALSE(fs::exists(mount + "/report"));
-    const auto batch = run_rastrum("batch " + shell_quoted(write_plan(open_folder("write-errors-full-batch"), mount + "/results")));
+    const auto batch = run_rastrum("batch " + shell_quoted(stiminfo_plan(open_folder("write-errors-full-batch"), mount + "/results")));
     expect_refused(batch, mount + "/results", "No space left on device");
     EXPECT_TRUE(temporaries_in(mount).empty());
 }

@@ -189,6 +189,19 @@ void run_task(const batch_plan& plan, const batch_settings& settings, const inte
     task.started_utc = utc_now();
     for (const auto& o: planned_outputs) create_folders((out / o).parent_path());
     remove_output_temporaries(out, planned_outputs);
+    // The batch's outputs are its own files: something else put in their place (a FIFO would stop
+    // the task until someone read it, a link would send its results elsewhere) fails the task.
+    for (const auto& o: planned_outputs) {
+        std::error_code ec;
+        const auto status = fs::symlink_status(out / o, ec);
+        if (fs::exists(status) && !fs::is_regular_file(status)) {
+            task.finished_utc = utc_now();
+            task.status = task_status::failed;
+            task.error = (fs::path(plan.output_folder) / o).string() +
+                         " is not a regular file; the batch writes only files of its own there: move it away";
+            return;
+        }
+    }
     const child_result child = run_child(settings.program, task.command, plan.folder.string(), &stop);
     remove_output_temporaries(out, planned_outputs, std::to_string(child.pid) + "-");
     task.finished_utc = utc_now();
