@@ -55,6 +55,11 @@ process_result run_rastrum(const std::string& args) {
     return collect(std::system(shell_command(args, base).c_str()), base);
 }
 
+process_result run_rastrum_via(const std::string& runner, const std::string& args) {
+    const std::string base = output_base();
+    return collect(std::system(shell_command(args, base, runner).c_str()), base);
+}
+
 process_result run_rastrum_limited(const std::string& args, unsigned seconds, unsigned long memory_kib) {
     const std::string base = output_base();
 #ifdef RASTRUM_SANITIZED
@@ -78,9 +83,9 @@ process_result run_rastrum_in(const std::string& folder, const std::string& args
     return collect(std::system(("cd '" + folder + "' && " + shell_command(args, base)).c_str()), base);
 }
 
-background_rastrum start_rastrum(const std::string& args) {
+background_rastrum start_rastrum(const std::string& args, const std::string& runner) {
     background_rastrum run{0, output_base()};
-    const std::string command = shell_command(args, run.base);
+    const std::string command = shell_command(args, run.base, runner);
     run.pid = ::fork();
     if (run.pid == 0) {
         ::execl("/bin/sh", "sh", "-c", command.c_str(), static_cast<char*>(nullptr));

@@ -18,6 +18,10 @@ process_result run_rastrum(const std::string& args);
 /// for inputs that must neither hang nor ask for memory they cannot justify.
 process_result run_rastrum_limited(const std::string& args, unsigned seconds, unsigned long memory_kib);
 
+/// As run_rastrum with `runner` in front, a command that runs what follows it (such as
+/// "setpriv --reuid=nobody ... "), for tests of what another user may do.
+process_result run_rastrum_via(const std::string& runner, const std::string& args);
+
 /// The same from the working directory `folder`.
 process_result run_rastrum_in(const std::string& folder, const std::string& args);
 
@@ -26,7 +30,7 @@ struct background_rastrum {
     int pid = 0;
     std::string base;  // where its stdout and stderr go
 };
-background_rastrum start_rastrum(const std::string& args);
+background_rastrum start_rastrum(const std::string& args, const std::string& runner = "");
 /// Waits for it; exit_code is 128 + N when signal N ended it, as a shell reports.
 process_result finish_rastrum(const background_rastrum& run);
 

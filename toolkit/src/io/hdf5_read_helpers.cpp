@@ -164,6 +164,18 @@ std::string library_message(const H5::Exception& e) {
     return message;
 }
 
+std::string write_failure(const H5::Exception& e, const std::string& written) {
+    std::string message = library_message(e);
+    // "file write failed: time = ..., filename = '...', ..., errno = 28, error message = 'No space left on device', ..."
+    static const std::regex system_reason(R"(error message = '([^']*)')");
+    std::smatch m;
+    if (std::regex_search(message, m, system_reason)) return m[1].str();
+    for (auto at = message.find(written); !written.empty() && at != std::string::npos; at = message.find(written)) {
+        message.replace(at, written.size(), "the file");
+    }
+    return message;
+}
+
 std::string element_path(const std::string& object, std::size_t index) {
     return object + "[" + std::to_string(index) + "]";
 }
