@@ -2,6 +2,7 @@
 
 #include <rastrum/atomic_file.hpp>
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/recording_hdf5.hpp>
 
 #include "loader_steps.hpp"
