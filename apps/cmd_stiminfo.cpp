@@ -97,6 +97,7 @@ int run_stiminfo(int argc, char** argv) {
     request.settings.splits = static_cast<unsigned>(parse_whole_number(splits_text, "--splits", 1, 1000));
     request.settings.seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
     request.threads = static_cast<unsigned>(parse_whole_number(threads_text, "--threads", 0, 1024));
+    request.max_memory = max_memory_of(shared);
     check_stiminfo_request(request);
     const recording_source source = source_of(file, input);
     const output_choice out = choose_outputs(shared, vm, source_files(source));

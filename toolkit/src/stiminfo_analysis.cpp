@@ -1,7 +1,10 @@
+#include "analysis_memory.hpp"
+
 #include <rastrum/aligned_units.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/binning.hpp>
 #include <rastrum/format.hpp>
+#include <rastrum/memory_bound.hpp>
 #include <rastrum/parallel.hpp>
 #include <rastrum/random.hpp>
 #include <rastrum/stiminfo_analysis.hpp>
@@ -31,13 +34,18 @@ void check_stiminfo_request(const stiminfo_request& q) {
 
 namespace {
 
-std::vector<std::pair<seconds, seconds>> windows_of(const stiminfo_request& q) {
-    std::vector<std::pair<seconds, seconds>> w;
+/// The windows, `count` of them (stiminfo_window_count, already checked against the memory bound).
+std::vector<std::pair<seconds, seconds>> windows_of(const stiminfo_request& q, double count) {
     const seconds a = q.response.window_start, b = q.response.window_stop;
     if (!q.slide) return {{a, b}};
     const auto [width, step] = *q.slide;
-    for (seconds t = a; t + width <= b + 1e-12; t += step) w.emplace_back(t, t + width);
-    if (w.empty()) throw usage_error("--slide-ms: the sliding window is wider than --window-ms");
+    std::vector<std::pair<seconds, seconds>> w;
+    // Each start from its index, not by adding steps: a step below the resolution of the start
+    // would otherwise never advance.
+    for (std::size_t i = 0; static_cast<double>(i) < count; ++i) {
+        const seconds t = a + static_cast<double>(i) * step;
+        w.emplace_back(t, t + width);
+    }
     return w;
 }
 
@@ -86,17 +94,18 @@ double standard_deviation(const std::vector<double>& values) {
     return std::sqrt(ss / static_cast<double>(values.size() - 1));
 }
 
+/// `joint_limit`: the joint responses the independent-units information may hold (check_stiminfo_memory).
 population_record population_of(const std::vector<labelled_responses>& units, const stiminfo_request& q,
-                                const info_settings& settings) {
+                                const info_settings& settings, std::size_t joint_limit) {
     population_record p;
-    p.values = population_information(units, q.population_estimator, settings, q.within_condition_shuffles);
+    p.values = population_information(units, q.population_estimator, settings, q.within_condition_shuffles, joint_limit);
     p.low = p.high = p.values;
     if (q.bootstrap < 2) return p;
     // The same interval as for single units (see run_stiminfo): the envelope of the bias-corrected
     // estimators, widened on each side by 1.96 bootstrap standard deviations of the population estimator.
     for (info_estimator e: envelope_estimators(q.estimators, q.population_estimator)) {
         if (e == q.population_estimator) continue;
-        const population_values v = population_information(units, e, settings, q.within_condition_shuffles);
+        const population_values v = population_information(units, e, settings, q.within_condition_shuffles, joint_limit);
         for (auto field: population_fields) {
             p.low.*field = std::min(p.low.*field, v.*field);
             p.high.*field = std::max(p.high.*field, v.*field);
@@ -107,7 +116,7 @@ population_record population_of(const std::vector<labelled_responses>& units, co
     std::vector<population_values> boot;
     for (unsigned b = 0; b < q.bootstrap; ++b) {
         boot.push_back(population_information(resample_within_conditions(units, members, rng), q.population_estimator,
-                                              settings, q.within_condition_shuffles));
+                                              settings, q.within_condition_shuffles, joint_limit));
     }
     for (auto field: population_fields) {
         std::vector<double> values;
@@ -193,6 +202,7 @@ void refuse_repeats(const std::vector<std::string>& names, const std::string& op
 
 std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_request& q) {
     check_stiminfo_request(q);
+    check_stiminfo_size(q);
     if (!rec.has_stimulus()) {
         const place labels = rec.labels_place();
         throw input_error(labels.file, labels.object,
@@ -280,7 +290,15 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         stimulus_entropy -= p * std::log2(p);
     }
 
-    const auto windows = windows_of(q);
+    const double window_count = stiminfo_window_count(q);
+    if (window_count < 1) {
+        throw usage_error("--slide-ms: the sliding window of " + format_number(q.slide->first * 1000) +
+                          " ms is wider than --window-ms " + format_number(q.response.window_start * 1000) + ":" +
+                          format_number(q.response.window_stop * 1000));
+    }
+    // Before any unit is read or any record allocated: what the tasks and their results will hold.
+    const std::size_t joint_limit = check_stiminfo_memory(rec, q, groups, per_condition, window_count);
+    const auto windows = windows_of(q, window_count);
     // Each unit is read when the first task needing it starts and let go after the last one: a
     // single unit's windows are adjacent tasks, and a population holds its members together.
     std::vector<std::size_t> uses(rec.units.size(), 0);
@@ -321,7 +339,21 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
 
         info_settings settings = q.settings;
         settings.seed = derive_seed(q.settings.seed, {text_hash(r.unit), static_cast<std::uint64_t>(w)});
-        if (members.size() > 1) r.population = population_of(members, q, settings);
+        if (members.size() > 1) {
+            try {
+                r.population = population_of(members, q, settings, joint_limit);
+            } catch (const insufficient_data& e) {
+                const bool by_memory = joint_limit < independent_joint_limit;
+                std::string ids;
+                for (const auto& id: r.units) ids += (ids.empty() ? "" : ",") + id;
+                throw insufficient_data(rec.source + ", --population " + ids + ": " + e.what() +
+                                        (by_memory ? " within --max-memory " + format_bytes(static_cast<double>(memory_bound_of(q.max_memory))) +
+                                                         " shared by " + std::to_string(effective_threads(q.threads)) + " threads"
+                                                   : std::string()) +
+                                        "; use a coarser code or fewer units" +
+                                        (by_memory ? ", fewer --threads or a larger --max-memory" : ""));
+            }
+        }
         for (info_estimator e: q.estimators) r.info_bits[e] = stimulus_information(t, e, settings);
         trial_fraction_curve(t, q, settings, r);
 
