@@ -79,11 +79,13 @@ int run_synth(int argc, char** argv) {
         parameters["modulation"] = modulations;
         if (kind == "frozen-bins") {
             frozen_bins_spec spec{session, bin_ms, rates, modulations, refractory, seed};
+            check_spec(spec);
             parameters["bin_ms"] = bin_ms;
             parameters["refractory"] = refractory;
             make = [spec](const unit_ready& ready) { return make_frozen_bins(spec, ready); };
         } else {
             poisson_spec spec{session, rates, modulations, correlation_ms, resolution_ms, seed};
+            check_spec(spec);
             parameters["correlation_ms"] = correlation_ms;
             parameters["resolution_ms"] = resolution_ms;
             make = [spec](const unit_ready& ready) { return make_poisson(spec, ready); };
@@ -98,11 +100,13 @@ int run_synth(int argc, char** argv) {
             spec.means.clear();
             for (const auto& row: means_text) spec.means.push_back(parse_number_list(row, "--means"));
         }
+        check_spec(spec);
         parameters["labels"] = spec.labels;
         parameters["trials_per_condition"] = per_condition;
         parameters["means"] = spec.means;
         make = [spec](const unit_ready& ready) { return make_conditions(spec, ready); };
     }
+    // Every parameter was checked above (check_spec): nothing is written for a request that fails.
     make_and_write_synthetic(make, out, parameters);
     std::cerr << "wrote " << out << " and " << answers_path_for(out) << "\n";
     return 0;

@@ -36,6 +36,11 @@ std::string count_text(double n) { return std::isfinite(n) ? format_number(n) : 
 
 std::string ms_text(seconds s) { return format_number(s * 1000) + " ms"; }
 
+/// "1 unit", "3 units".
+std::string counted(std::size_t n, const std::string& thing) {
+    return std::to_string(n) + " " + thing + (n == 1 ? "" : "s");
+}
+
 /// Bytes of the two subset tallies of the direct method (subset_tally.hpp): a table of counts up to
 /// 4096 (pooled words) or the trial count (words at one position) per subset, and lanes per trial.
 double subset_tallies(double trials, double splits) {
@@ -84,8 +89,8 @@ void check_direct_memory(const recording& rec, const direct_request& q, const st
     const memory_part per_task{task, request + (threads > 1 ? ", held by each of " + format_number(threads) + " threads" : ""),
                                threads > 1 ? "use a wider bin, fewer trials or fewer --threads" : "use a wider bin or fewer trials"};
     const memory_part results{tasks * (per_direct_result + per_direct_word_length * lengths),
-                              rec.source + ": " + std::to_string(units.size()) + " units x " + std::to_string(q.bin_ms.size()) +
-                                  " bin widths x " + format_number(lengths) + " word lengths (--letters " +
+                              rec.source + ": " + counted(units.size(), "unit") + " x " + counted(q.bin_ms.size(), "bin width") +
+                                  " x " + counted(static_cast<std::size_t>(lengths), "word length") + " (--letters " +
                                   std::to_string(q.settings.letters_min) + "-" + std::to_string(q.settings.letters_max) +
                                   ") of results",
                               "analyse fewer units, bin widths or word lengths at once"};
@@ -109,10 +114,6 @@ std::string coded_text(const stiminfo_request& q) {
     return q.slide ? "windows of " + ms_text(q.slide->first) + " (--slide-ms)" : window_text(q);
 }
 
-/// "1 unit", "3 units".
-std::string counted(std::size_t n, const std::string& thing) {
-    return std::to_string(n) + " " + thing + (n == 1 ? "" : "s");
-}
 
 }  // namespace
 

@@ -102,14 +102,17 @@ std::uint64_t parse_memory_size(const std::string& text, const std::string& opti
     return static_cast<std::uint64_t>(bytes);
 }
 
+std::string default_memory_bound_text() {
+    const available_memory a = memory_available();
+    return format_bytes(static_cast<double>(a.bytes / 2)) + " (half of " + format_bytes(static_cast<double>(a.bytes)) +
+           ", " + a.limited_by + ")";
+}
+
 void require_memory(double needed, std::uint64_t max_memory, const std::string& request, const std::string& advice) {
     const std::uint64_t bound = memory_bound_of(max_memory);
     if (needed <= static_cast<double>(bound)) return;
-    std::string limit = "--max-memory " + format_bytes(static_cast<double>(bound));
-    if (max_memory == 0) {
-        const available_memory a = memory_available();
-        limit += " (the default: half of " + format_bytes(static_cast<double>(a.bytes)) + ", " + a.limited_by + ")";
-    }
+    const std::string limit = max_memory == 0 ? "--max-memory's default of " + default_memory_bound_text()
+                                              : "--max-memory " + format_bytes(static_cast<double>(bound));
     throw insufficient_data(request + ", which needs about " + format_bytes(needed) + ", above " + limit + "; " + advice +
                             ", or raise --max-memory");
 }

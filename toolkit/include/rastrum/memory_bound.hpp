@@ -31,7 +31,10 @@ std::uint64_t parse_memory_size(const std::string& text, const std::string& opti
 /// A request's bound: `max_memory` bytes, or the default when it is 0.
 std::uint64_t memory_bound_of(std::uint64_t max_memory);
 
-/// Throws insufficient_data "REQUEST needs about X, above --max-memory Y (...); ADVICE" when
+/// The default bound as a message says it: "11.6 GiB (half of 23.2 GiB, physical memory)".
+std::string default_memory_bound_text();
+
+/// Throws insufficient_data "REQUEST, which needs about X, above --max-memory Y (...); ADVICE" when
 /// `needed` bytes exceed the bound of `max_memory` (0: the default, which the message then explains).
 /// REQUEST says what makes it large in the user's terms ("--bin-ms 1e-05 across 200 trials of 4 s
 /// makes ..."); ADVICE what would make it fit.
