@@ -26,7 +26,15 @@ void check_stiminfo_request(const stiminfo_request& q) {
     }
     if (r.code != response_code::spike_count && !(r.bin_width > 0)) throw usage_error("--bin-ms must be positive");
     if (q.slide && (!(q.slide->first > 0) || !(q.slide->second > 0))) {
-        throw usage_error("--slide-ms W:S needs a positive width and step");
+        throw usage_error("--slide-ms W:S needs a positive width and step, got " + format_number(q.slide->first * 1000) +
+                          ":" + format_number(q.slide->second * 1000));
+    }
+    const seconds coded = q.slide ? q.slide->first : r.window_stop - r.window_start;
+    if (r.code != response_code::spike_count && whole_bins(coded, r.bin_width) == 0) {
+        throw usage_error("--bin-ms " + format_number(r.bin_width * 1000) + " is wider than " +
+                          (q.slide ? "the --slide-ms windows of " + format_number(coded * 1000) + " ms"
+                                   : "--window-ms " + format_number(r.window_start * 1000) + ":" +
+                                         format_number(r.window_stop * 1000)));
     }
     if (q.estimators.empty()) throw usage_error("--estimators: name at least one");
     if (q.settings.splits < 1) throw usage_error("--splits must be at least 1");
@@ -220,7 +228,7 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
     for (const auto& id: q.units) groups.push_back({rec.unit_index(id)});
     // A population's members are analysed alone too, so its synergy can be read against them.
     for (const auto& members: q.populations) {
-        if (members.size() < 2) throw usage_error("--population needs at least two units");
+        if (members.size() < 2) throw usage_error("--population " + members[0] + ": a population needs at least two units");
         refuse_repeats(members, "--population");
         for (const auto& id: members) {
             const std::size_t u = rec.unit_index(id);
