@@ -158,21 +158,24 @@ std::size_t check_stiminfo_memory(const recording& rec, const stiminfo_request& 
     for (const auto& g: groups) {
         const double members = static_cast<double>(g.size());
         most_members = std::max(most_members, members);
-        double bytes = per_letter * letters * trials + per_trial_response * trials * (members + 1) +
-                       8.0 * (q.null_shuffles + q.bootstrap) + (g.size() > 1 ? 40.0 * q.bootstrap : 0);
-        for (const std::size_t u: g) bytes += per_spike_held * static_cast<double>(rec.spike_count(u)) + per_trial_held * trials;
-        std::string what = rec.source + ": " + std::to_string(static_cast<std::size_t>(trials)) + " trials of " +
-                           counted(g.size(), "unit");
-        if (bytes > task) {
-            task = bytes;
-            largest_task.request = what;
-        }
+        // The values of the label-shuffle null and of the bootstrap (a population keeps five per resample).
+        const double resamples = 8.0 * (q.null_shuffles + q.bootstrap) + (g.size() > 1 ? 40.0 * q.bootstrap : 0);
+        double responses = per_letter * letters * trials + per_trial_response * trials * (members + 1);
+        for (const std::size_t u: g) responses += per_spike_held * static_cast<double>(rec.spike_count(u)) + per_trial_held * trials;
+        if (resamples + responses <= task) continue;
+        task = resamples + responses;
+        largest_task.request =
+            rec.source + ": " +
+            (resamples > responses ? "--null-shuffles " + std::to_string(q.null_shuffles) + " and --bootstrap " +
+                                         std::to_string(q.bootstrap) + " values"
+                                   : std::to_string(static_cast<std::size_t>(trials)) + " trials of " + counted(g.size(), "unit"));
+        largest_task.advice = resamples > responses ? "use fewer --null-shuffles or --bootstrap" : "use fewer trials or units";
     }
     const double tasks = static_cast<double>(groups.size()) * windows;
     const double threads = std::min(tasks, static_cast<double>(effective_threads(q.threads)));
     largest_task.bytes = task;
     if (threads > 1) largest_task.request += ", held by each of " + format_number(threads) + " threads";
-    largest_task.advice = threads > 1 ? "use fewer trials, units or --threads" : "use fewer trials or units";
+    if (threads > 1) largest_task.advice += ", or fewer --threads";
     memory_part results{tasks * per_stiminfo_record, "", "use fewer units or windows"};
     const std::string groups_text = q.populations.empty() ? counted(groups.size(), "unit")
                                                           : std::to_string(groups.size()) + " units and populations";

@@ -356,7 +356,9 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
                 for (const auto& id: r.units) ids += (ids.empty() ? "" : ",") + id;
                 throw insufficient_data(rec.source + ", --population " + ids + ": " + e.what() +
                                         (by_memory ? " within --max-memory " + format_bytes(static_cast<double>(memory_bound_of(q.max_memory))) +
-                                                         " shared by " + std::to_string(effective_threads(q.threads)) + " threads"
+                                                         (effective_threads(q.threads) > 1
+                                                              ? " shared by " + std::to_string(effective_threads(q.threads)) + " threads"
+                                                              : std::string())
                                                    : std::string()) +
                                         "; use a coarser code or fewer units" +
                                         (by_memory ? ", fewer --threads or a larger --max-memory" : ""));
