@@ -25,8 +25,8 @@ constexpr double per_letter = 4, per_spiky_word = 80, per_position = 80;
 constexpr double per_direct_result = 8 * 1024, per_direct_word_length = 24 * 1024;
 // stiminfo: codes, labelled copies, histograms and the jackknife's maps per trial and response held.
 constexpr double per_trial_response = 512;
-// stiminfo: one record in memory and in its renderings (measured: 30 KiB with every estimator).
-constexpr double per_stiminfo_record = 40 * 1024;
+// stiminfo: one record in memory and in its renderings (measured: 42 KiB with every estimator).
+constexpr double per_stiminfo_record = 48 * 1024;
 // One joint response of the independent-units information: a map node holding the responses of M
 // units and its probability, in about three maps at once.
 constexpr double per_joint_response = 3 * 96, per_joint_member = 3 * 8;
