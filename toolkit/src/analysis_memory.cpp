@@ -16,9 +16,10 @@ namespace {
 // rounded up. Per spike of a unit held: its times as read and aligned to trials (8 bytes each),
 // and for stiminfo the copy inside the window.
 constexpr double per_spike_held = 16, per_trial_held = 64;
-// direct: letters are 4 bytes per bin and trial (a rotated copy as much again); the lists of words
-// that hold a spike take 16 bytes per word in about three lists at once; each bin position keeps
-// three offsets of 8 bytes.
+// direct: letters are 4 bytes per bin and trial (a rotated copy as much again); a word that holds a
+// spike is 16 bytes in each of the lists sparse_words keeps (by position, pooled, the next length's,
+// the fresh ones, the sort's scratch): measured 60-65 bytes per word, taken as 80; each bin position
+// keeps offsets into them and per-position values: measured about 70 bytes, taken as 80.
 constexpr double per_letter = 4, per_spiky_word = 80, per_position = 80;
 // direct: one result (unit and bin width) in memory and in its JSON, CSV and HDF5 renderings:
 // about 20 KiB per word length (every estimate and its curves against 1/N) and a little more.

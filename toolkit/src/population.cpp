@@ -77,7 +77,7 @@ double independent_information(const std::vector<labelled_responses>& units, con
         support += product;
     }
     if (support > static_cast<double>(joint_limit)) {
-        throw insufficient_data("the independent-units information of these " + std::to_string(units.size()) +
+        throw too_many_joint_responses("the independent-units information of these " + std::to_string(units.size()) +
                                 " units needs " + format_number(support) + " joint responses (the product of their "
                                 "distinct responses in each condition), more than the " +
                                 format_number(static_cast<double>(joint_limit)) + " it may hold");

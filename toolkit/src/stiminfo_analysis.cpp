@@ -136,6 +136,19 @@ population_record population_of(const std::vector<labelled_responses>& units, co
     return p;
 }
 
+/// Why a population's independent-units information was refused, with what set its limit.
+std::string joint_refusal(const std::string& source, const std::vector<std::string>& units, const stiminfo_request& q,
+                          std::size_t joint_limit, const std::string& what) {
+    std::string ids;
+    for (const auto& id: units) ids += (ids.empty() ? "" : ",") + id;
+    std::string out = source + ", --population " + ids + ": " + what;
+    if (joint_limit >= independent_joint_limit) return out + "; use a coarser code or fewer units";
+    const unsigned threads = effective_threads(q.threads);
+    return out + " within --max-memory " + format_bytes(static_cast<double>(memory_bound_of(q.max_memory))) +
+           (threads > 1 ? " shared by " + std::to_string(threads) + " threads" : "") +
+           "; use a coarser code, fewer units, fewer --threads or a larger --max-memory";
+}
+
 /// Highest minus lowest bias-corrected estimate (0 when fewer than two were asked for).
 double spread_of_corrected(const std::map<info_estimator, double>& info_bits) {
     double low = INFINITY, high = -INFINITY;
@@ -350,18 +363,8 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         if (members.size() > 1) {
             try {
                 r.population = population_of(members, q, settings, joint_limit);
-            } catch (const insufficient_data& e) {
-                const bool by_memory = joint_limit < independent_joint_limit;
-                std::string ids;
-                for (const auto& id: r.units) ids += (ids.empty() ? "" : ",") + id;
-                throw insufficient_data(rec.source + ", --population " + ids + ": " + e.what() +
-                                        (by_memory ? " within --max-memory " + format_bytes(static_cast<double>(memory_bound_of(q.max_memory))) +
-                                                         (effective_threads(q.threads) > 1
-                                                              ? " shared by " + std::to_string(effective_threads(q.threads)) + " threads"
-                                                              : std::string())
-                                                   : std::string()) +
-                                        "; use a coarser code or fewer units" +
-                                        (by_memory ? ", fewer --threads or a larger --max-memory" : ""));
+            } catch (const too_many_joint_responses& e) {
+                throw insufficient_data(joint_refusal(rec.source, r.units, q, joint_limit, e.what()));
             }
         }
         for (info_estimator e: q.estimators) r.info_bits[e] = stimulus_information(t, e, settings);

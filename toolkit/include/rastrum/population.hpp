@@ -3,6 +3,7 @@
 /// taken one at a time (synergy or redundancy), with conditionally independent units, and with the
 /// shuffle-corrected estimate of Montemurro, Senatore & Panzeri 2007 (Neural Comput. 19:2913) and
 /// Panzeri, Senatore, Montemurro & Petersen 2007 (J. Neurophysiol. 98:1064).
+#include <rastrum/errors.hpp>
 #include <rastrum/stimulus_information.hpp>
 
 #include <cstddef>
@@ -23,6 +24,12 @@ std::vector<labelled_responses> shuffled_within_conditions(const std::vector<lab
 /// The most joint responses independent_information holds, summed over the conditions (about 100
 /// bytes each, in three maps at once): its default limit, which a caller with less memory lowers.
 inline constexpr std::size_t independent_joint_limit = 1000000;
+
+/// What independent_information throws when the joint responses exceed its limit (exit 4 as any
+/// insufficient_data), so that a caller that set the limit can say why.
+struct too_many_joint_responses: insufficient_data {
+    using insufficient_data::insufficient_data;
+};
 
 /// I(S;R) if the units were conditionally independent: the plug-in information of the product of the
 /// units' empirical conditional distributions, summed exactly over its support, over the trials in
