@@ -75,11 +75,13 @@ int run_synth(int argc, char** argv) {
         parameters["modulation"] = modulations;
         if (kind == "frozen-bins") {
             frozen_bins_spec spec{session, bin_ms, rates, modulations, refractory, seed};
+            check_spec(spec);
             parameters["bin_ms"] = bin_ms;
             parameters["refractory"] = refractory;
             make = [spec](const unit_ready& ready) { return make_frozen_bins(spec, ready); };
         } else {
             poisson_spec spec{session, rates, modulations, correlation_ms, resolution_ms, seed};
+            check_spec(spec);
             parameters["correlation_ms"] = correlation_ms;
             parameters["resolution_ms"] = resolution_ms;
             make = [spec](const unit_ready& ready) { return make_poisson(spec, ready); };
@@ -94,12 +96,14 @@ int run_synth(int argc, char** argv) {
             spec.means.clear();
             for (const auto& row: means_text) spec.means.push_back(parse_number_list(row, "--means"));
         }
+        check_spec(spec);
         parameters["labels"] = spec.labels;
         parameters["trials_per_condition"] = per_condition;
         parameters["means"] = spec.means;
         make = [spec](const unit_ready& ready) { return make_conditions(spec, ready); };
     }
-    // Made ready before any spike is drawn: an output that cannot be written is known at once.
+    // Every parameter was checked above (check_spec), and the outputs are made ready before any spike
+    // is drawn: nothing is written for a request that fails, and an unwritable output is known at once.
     output_file recording_file(recording_target, output_file::content::by_path), answers_file(answers_target);
     make_and_write_synthetic(make, recording_file, answers_file, parameters);
     std::cerr << "wrote " << out << " and " << answers_path_for(out) << "\n";

@@ -10,6 +10,7 @@
 #include <rastrum/sha256.hpp>
 #include <rastrum/version.hpp>
 #include <rastrum/format.hpp>
+#include <rastrum/memory_bound.hpp>
 
 #include <algorithm>
 #include <cmath>
@@ -207,7 +208,18 @@ void add_shared_options(po::options_description& options, shared_options& shared
          "write an HDF5 results file: the whole result and every curve, one group per analysis and unit")
         ("progress", po::value(&shared.progress)->default_value(shared.progress),
          "progress on stderr: auto (a bar on a terminal, nothing otherwise), bar, plain (a line every few seconds) or none")
-        ("quiet,q", po::bool_switch(&shared.quiet), "no table, no progress and no status lines");
+        ("quiet,q", po::bool_switch(&shared.quiet), "no table, no progress and no status lines")
+        ("max-memory", po::value(&shared.max_memory)->value_name("SIZE"),
+         ("the most memory the analysis may use, e.g. 8G or 512M (K, M, G, T: powers of 1024): what it would "
+          "need is estimated before any work, and a request beyond it is refused (exit 4); default: half of " +
+          [] {
+              const available_memory a = memory_available();
+              return format_bytes(static_cast<double>(a.bytes)) + " (" + a.limited_by + " here)";
+          }()).c_str());
+}
+
+std::uint64_t max_memory_of(const shared_options& shared) {
+    return shared.max_memory.empty() ? 0 : parse_memory_size(shared.max_memory, "--max-memory");
 }
 
 const char* const recording_file_meaning =

@@ -100,11 +100,15 @@ struct shared_options {
     std::string h5;
     std::string progress = "auto";
     bool quiet = false;
+    std::string max_memory;  // empty: the default bound (memory_bound.hpp)
 };
 
 /// Declares --trials, --exclude-trials, --json, --csv (`csv_rows` says what a row is), --curves-csv,
-/// --h5, --progress and --quiet, stored in `shared`.
+/// --h5, --progress, --quiet and --max-memory, stored in `shared`.
 void add_shared_options(po::options_description& options, shared_options& shared, const std::string& csv_rows);
+
+/// --max-memory in bytes for an analysis request (0: the default bound). Throws usage_error.
+std::uint64_t max_memory_of(const shared_options& shared);
 
 /// --trials and --exclude-trials as a selection (everything when neither is given).
 trial_selection trials_of(const shared_options& shared);

@@ -121,7 +121,7 @@ bool wait_for_a_temporary(const std::string& folder, const background_rastrum& r
 
 void stop_while_working(const workload& w, const std::string& folder, int signal) {
     for (const auto& o: w.outputs) std::ofstream(folder + "/" + o) << "old\n";
-    const auto run = start_rastrum(w.args);
+    const auto run = start_rastrum(w.args, ending::provoked);
     ASSERT_TRUE(wait_for_a_temporary(folder, run)) << w.name << " ended before it could be stopped: "
                                                    << finish_rastrum(run).err;
     std::this_thread::sleep_for(std::chrono::milliseconds(100));  // into the work itself
@@ -163,7 +163,7 @@ TEST(cli_signals, a_run_stopped_while_writing_its_outputs_leaves_none) {
               " --csv " + shell_quoted(folder + "/d.csv"),
           "synth conditions --trials-per-condition 5 --out " + shell_quoted(folder + "/nobody-reads.h5")}) {
         SCOPED_TRACE(args);
-        const auto run = start_rastrum(args, "env TMPDIR=" + shell_quoted(scratch) + " ");
+        const auto run = start_rastrum_via("env TMPDIR=" + shell_quoted(scratch) + " ", args, ending::provoked);
         ASSERT_TRUE(wait_for_a_temporary(folder, run)) << finish_rastrum(run).err;
         // The work is short; wait until only the blocked open of the FIFO is left.
         std::this_thread::sleep_for(std::chrono::milliseconds(500));
@@ -213,7 +213,7 @@ TEST(cli_signals, a_later_run_removes_stale_temporaries_of_dead_processes_only) 
 TEST(cli_signals, convert_makes_one_temporary_named_after_its_output) {
     const inputs& in = shared_inputs();
     const std::string folder = open_folder("signals-convert-name");
-    const auto run = start_rastrum("convert " + shell_quoted(in.large) + " --out " + shell_quoted(folder + "/c.h5"));
+    const auto run = start_rastrum("convert " + shell_quoted(in.large) + " --out " + shell_quoted(folder + "/c.h5"), ending::provoked);
     ASSERT_TRUE(wait_for_a_temporary(folder, run)) << finish_rastrum(run).err;
     const auto seen = temporaries_in(folder);
     ::kill(run.pid, SIGTERM);

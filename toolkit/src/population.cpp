@@ -1,4 +1,5 @@
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/population.hpp>
 #include <rastrum/random.hpp>
 
@@ -46,7 +47,8 @@ std::vector<labelled_responses> shuffled_within_conditions(const std::vector<lab
     return out;
 }
 
-double independent_information(const std::vector<labelled_responses>& units, const std::vector<std::size_t>& use) {
+double independent_information(const std::vector<labelled_responses>& units, const std::vector<std::size_t>& use,
+                               std::size_t joint_limit) {
     const std::size_t conditions = units[0].conditions;
     std::vector<std::size_t> trials = use;
     if (trials.empty()) {
@@ -65,6 +67,21 @@ double independent_information(const std::vector<labelled_responses>& units, con
             for (auto& [r, c]: marginal[u][s]) c /= total;
         }
     }
+    // The product of the supports, counted before it is built: it grows as the product of the units'
+    // distinct responses, and the maps below hold every one of them.
+    double support = 0;
+    for (std::size_t s = 0; s < conditions; ++s) {
+        if (p_s[s] == 0) continue;
+        double product = 1;
+        for (std::size_t u = 0; u < units.size(); ++u) product *= static_cast<double>(marginal[u][s].size());
+        support += product;
+    }
+    if (support > static_cast<double>(joint_limit)) {
+        throw too_many_joint_responses("the independent-units information of these " + std::to_string(units.size()) +
+                                " units needs " + format_number(support) + " joint responses (the product of their "
+                                "distinct responses in each condition), more than the " +
+                                format_number(static_cast<double>(joint_limit)) + " it may hold");
+    }
     // P_ind(r | s) over the product of the supports, and the pooled P_ind(r).
     std::vector<std::map<std::vector<word_code>, double>> conditional(conditions);
     for (std::size_t s = 0; s < conditions; ++s) {
@@ -78,9 +95,6 @@ double independent_information(const std::vector<labelled_responses>& units, con
                     longer.push_back(r);
                     grown[longer] = p * q;
                 }
-            }
-            if (grown.size() > 1000000) {
-                throw insufficient_data("the independent-units information needs more than 10^6 joint responses");
             }
             product = std::move(grown);
         }
@@ -100,7 +114,7 @@ double independent_information(const std::vector<labelled_responses>& units, con
 }
 
 population_values population_information(const std::vector<labelled_responses>& units, info_estimator estimator,
-                                         const info_settings& settings, unsigned shuffles) {
+                                         const info_settings& settings, unsigned shuffles, std::size_t joint_limit) {
     population_values v;
     const labelled_responses joint = joint_responses(units);
     v.joint = stimulus_information(joint, estimator, settings);
@@ -112,7 +126,7 @@ population_values population_information(const std::vector<labelled_responses>& 
     v.synergy = v.joint - v.sum_single;
     v.independent = extrapolate_over_trials(
         units[0].condition, units[0].conditions,
-        [&](const std::vector<std::size_t>& use) { return independent_information(units, use); }, settings);
+        [&](const std::vector<std::size_t>& use) { return independent_information(units, use, joint_limit); }, settings);
     double shuffled_noise = 0;  // H_sh(R|S), averaged over shuffles
     const unsigned repeats = std::max(1u, shuffles);
     for (unsigned i = 0; i < repeats; ++i) {

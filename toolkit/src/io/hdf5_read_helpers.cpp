@@ -1,6 +1,8 @@
 #include "hdf5_read_helpers.hpp"
 #include "loader_steps.hpp"
 
+#include <rastrum/format.hpp>
+
 #include <algorithm>
 #include <cmath>
 #include <cstring>

@@ -1,6 +1,7 @@
 #include "hdf5_read_helpers.hpp"
 
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/output_file.hpp>
 #include <rastrum/recording_hdf5.hpp>
 
