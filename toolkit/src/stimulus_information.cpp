@@ -1,4 +1,5 @@
 #include "log_gamma.hpp"
+#include "ranked_trials.hpp"
 
 #include <rastrum/code_counting.hpp>
 #include <rastrum/entropy.hpp>
@@ -10,7 +11,6 @@
 
 #include <algorithm>
 #include <cmath>
-#include <map>
 #include <numeric>
 
 namespace rastrum {
@@ -91,27 +91,28 @@ double plugin_information(const histograms& h) { return information_with(h, plug
 
 // Leave-one-trial-out: removing a trial with response r in condition s changes H(R) in one bin,
 // H(R|s) in one bin and every weight N_s' / N; trials in the same (s, r) cell give the same value.
+// Cells are visited by condition, then in increasing order of response (rank order is code order).
 double jackknife_information(const labelled_responses& t) {
     const double n = static_cast<double>(t.response.size());
-    if (n < 2) return plugin_information(histograms_of(t, {}));
-    std::map<word_code, count> pooled;
-    std::vector<std::map<word_code, count>> per(t.conditions);
+    detail::ranked_trials ranked(t.condition, t.conditions, t.response);
+    if (n < 2) return ranked.plugin_information();
+    const std::size_t distinct = ranked.distinct();
+    std::vector<std::uint32_t> pooled(distinct, 0), per(t.conditions * distinct, 0);
     std::vector<count> in_condition(t.conditions, 0);
     for (std::size_t k = 0; k < t.response.size(); ++k) {
-        ++pooled[t.response[k]];
-        ++per[t.condition[k]][t.response[k]];
+        const std::uint32_t r = ranked.rank()[k];
+        ++pooled[r];
+        ++per[t.condition[k] * distinct + r];
         ++in_condition[t.condition[k]];
     }
-    auto summary_of = [](const std::map<word_code, count>& m) {
-        count_summary s;
-        for (const auto& [code, c]: m) s.add(c);
-        return s;
-    };
-    const count_summary all = summary_of(pooled);
+    std::vector<std::uint32_t> scratch = pooled;
+    const count_summary all = detail::ranked_trials::summary_clearing(scratch.data(), distinct);
     std::vector<count_summary> cond;
     std::vector<double> h_cond;
-    for (const auto& m: per) {
-        cond.push_back(summary_of(m));
+    for (std::size_t s = 0; s < t.conditions; ++s) {
+        scratch.assign(per.begin() + static_cast<std::ptrdiff_t>(s * distinct),
+                       per.begin() + static_cast<std::ptrdiff_t>((s + 1) * distinct));
+        cond.push_back(detail::ranked_trials::summary_clearing(scratch.data(), distinct));
         h_cond.push_back(plugin_entropy(cond.back()));
     }
     // Entropy of a histogram with one sample less in a bin that held c samples.
@@ -124,27 +125,33 @@ double jackknife_information(const labelled_responses& t) {
     for (std::size_t s = 0; s < t.conditions; ++s) weighted_noise += static_cast<double>(in_condition[s]) * h_cond[s];
     double sum_left_out = 0;
     for (std::size_t s = 0; s < t.conditions; ++s) {
-        for (const auto& [code, c]: per[s]) {
-            const double h_total = without_one(all, pooled[code]);
+        for (std::size_t r = 0; r < distinct; ++r) {
+            const count c = per[s * distinct + r];
+            if (c == 0) continue;
+            const double h_total = without_one(all, pooled[r]);
             const double h_s = without_one(cond[s], c);
             const double noise = (weighted_noise - static_cast<double>(in_condition[s]) * h_cond[s] +
                                   (static_cast<double>(in_condition[s]) - 1) * h_s) / (n - 1);
             sum_left_out += static_cast<double>(c) * (h_total - noise);
         }
     }
-    return n * plugin_information(histograms_of(t, {})) - (n - 1) * sum_left_out / n;
+    return n * ranked.plugin_information() - (n - 1) * sum_left_out / n;
 }
 
 double extrapolated_information(const labelled_responses& t, const info_settings& settings) {
+    detail::ranked_trials ranked(t.condition, t.conditions, t.response);
     return extrapolate_over_trials(
-        t.condition, t.conditions, [&](const std::vector<std::size_t>& use) { return plugin_information(histograms_of(t, use)); },
+        t.condition, t.conditions, [&](const std::vector<std::size_t>& use) { return ranked.plugin_information(use); },
         settings);
 }
 
 double extrapolated_entropy(const std::vector<word_code>& responses, const info_settings& settings) {
+    // Blocks of a shuffled order of the trials; shuffling indices permutes them as it would the codes.
+    detail::ranked_trials ranked(std::vector<std::uint32_t>(responses.size(), 0), 1, responses);
     const double n = static_cast<double>(responses.size());
-    std::vector<double> x{1 / n}, y{plugin_of(counts_of_codes(responses))}, w{1};
-    std::vector<word_code> order = responses;
+    std::vector<std::uint32_t> order(responses.size());
+    for (std::size_t k = 0; k < order.size(); ++k) order[k] = static_cast<std::uint32_t>(k);
+    std::vector<double> x{1 / n}, y{ranked.plugin_entropy_of(order, 0, order.size())}, w{1};
     for (unsigned split = 0; split < settings.splits; ++split) {
         random_stream rng(derive_seed(settings.seed, {0xe47ULL, split}));
         shuffle(order, rng);
@@ -155,8 +162,7 @@ double extrapolated_entropy(const std::vector<word_code>& responses, const info_
                 const std::size_t to = order.size() * static_cast<std::size_t>(b + 1) / static_cast<std::size_t>(blocks);
                 if (to <= from) continue;
                 x.push_back(1 / static_cast<double>(to - from));
-                y.push_back(plugin_of(counts_of_codes(std::vector<word_code>(order.begin() + static_cast<std::ptrdiff_t>(from),
-                                                                       order.begin() + static_cast<std::ptrdiff_t>(to)))));
+                y.push_back(ranked.plugin_entropy_of(order, from, to));
                 w.push_back(1.0 / (blocks * settings.splits));
             }
         }
