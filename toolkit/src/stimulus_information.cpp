@@ -11,6 +11,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <memory>
 #include <numeric>
 
 namespace rastrum {
@@ -172,14 +173,20 @@ double extrapolated_entropy(const std::vector<word_code>& responses, const info_
 
 }  // namespace
 
+namespace {
+/// The halves and quarters of one call of extrapolate_over_trials, in the order they are fitted.
+struct stratified_subset {
+    std::vector<std::size_t> use;  // trial indices, increasing
+    double weight;
+};
+
 // Stratified random subsets: each condition's trials in random order, cut into quarters; halves are
 // pairs of quarters.
-double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std::size_t conditions,
-                               const std::function<double(const std::vector<std::size_t>&)>& value,
-                               const info_settings& settings) {
+std::vector<stratified_subset> draw_stratified_subsets(const std::vector<std::uint32_t>& condition, std::size_t conditions,
+                                                       const info_settings& settings) {
     std::vector<std::vector<std::size_t>> members(conditions);
     for (std::size_t k = 0; k < condition.size(); ++k) members[condition[k]].push_back(k);
-    std::vector<double> x{1 / static_cast<double>(condition.size())}, y{value({})}, w{1};
+    std::vector<stratified_subset> out;
     for (unsigned split = 0; split < settings.splits; ++split) {
         random_stream rng(derive_seed(settings.seed, {0x9e0ULL, split}));
         std::vector<std::vector<std::size_t>> quarter(4);
@@ -197,11 +204,46 @@ double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std:
                 }
                 if (use.empty()) continue;
                 std::sort(use.begin(), use.end());
-                x.push_back(1 / static_cast<double>(use.size()));
-                y.push_back(value(use));
-                w.push_back(1.0 / (blocks * settings.splits));
+                out.push_back({std::move(use), 1.0 / (blocks * settings.splits)});
             }
         }
+    }
+    return out;
+}
+
+/// The subsets depend only on the conditions of the trials, the seed and the number of splits, and a
+/// record asks for the same ones many times (every estimate, every bootstrap resample of a
+/// population keeps the conditions in place): the last draw of each thread is kept.
+std::shared_ptr<const std::vector<stratified_subset>> stratified_subsets(const std::vector<std::uint32_t>& condition, std::size_t conditions,
+                                                         const info_settings& settings) {
+    struct drawn {
+        std::vector<std::uint32_t> condition;
+        std::size_t conditions = 0;
+        info_settings settings;
+        std::shared_ptr<const std::vector<stratified_subset>> subsets;
+    };
+    thread_local drawn last;
+    if (!last.subsets || last.conditions != conditions || last.settings.seed != settings.seed ||
+        last.settings.splits != settings.splits || last.condition != condition) {
+        last.subsets = std::make_shared<const std::vector<stratified_subset>>(draw_stratified_subsets(condition, conditions, settings));
+        last.condition = condition;
+        last.conditions = conditions;
+        last.settings = settings;
+    }
+    return last.subsets;
+}
+}  // namespace
+
+double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std::size_t conditions,
+                               const std::function<double(const std::vector<std::size_t>&)>& value,
+                               const info_settings& settings) {
+    std::vector<double> x{1 / static_cast<double>(condition.size())}, y{value({})}, w{1};
+    // Held here: `value` may itself extrapolate (and redraw the thread's subsets).
+    const auto subsets = stratified_subsets(condition, conditions, settings);
+    for (const auto& subset: *subsets) {
+        x.push_back(1 / static_cast<double>(subset.use.size()));
+        y.push_back(value(subset.use));
+        w.push_back(subset.weight);
     }
     return fit_inverse_size(x, y, w).at_infinity;
 }
@@ -235,6 +277,38 @@ double panzeri_treves_bias(const std::vector<double>& relevant_per_condition, do
     return (sum - (relevant_pooled - 1)) / (2 * trials * std::log(2.0));
 }
 
+namespace {
+/// The grid of beta that relevant_responses searches (ln beta from -14 to 7 in steps of 0.05, the
+/// steps added as they always were) and, per thread, lnGamma(c + beta) - lnGamma(beta) for the counts
+/// c met so far.
+class relevant_grid {
+public:
+    relevant_grid() {
+        for (double log_beta = -14; log_beta <= 7; log_beta += 0.05) beta.push_back(std::exp(log_beta));
+        by_count_.resize(beta.size());
+    }
+    double rising(std::size_t i, count c) const {
+        std::vector<double>& row = by_count_[i];
+        if (c >= row.size()) {
+            if (c > 4096) return log_gamma(static_cast<double>(c) + beta[i]) - log_gamma(beta[i]);
+            const std::size_t from = row.size();
+            row.resize(static_cast<std::size_t>(c) + 1);
+            for (std::size_t m = from; m <= c; ++m) row[m] = log_gamma(static_cast<double>(m) + beta[i]) - log_gamma(beta[i]);
+        }
+        return row[c];
+    }
+    std::vector<double> beta;
+
+private:
+    mutable std::vector<std::vector<double>> by_count_;
+};
+
+const relevant_grid& relevant_grid_table() {
+    thread_local const relevant_grid grid;
+    return grid;
+}
+}  // namespace
+
 double relevant_responses(const std::vector<count>& counts, double alphabet) {
     // Observed values, plus the unseen ones a Dirichlet posterior would expect to show up in a
     // sample of the same size: sum over values of 1 - (1 - q)^N with q the posterior mean
@@ -249,15 +323,18 @@ double relevant_responses(const std::vector<count>& counts, double alphabet) {
     const double k = std::max(alphabet, observed);
     if (n == 0 || k <= observed) return observed;
     const double N = static_cast<double>(n);
-    auto log_evidence = [&](double beta) {
+    // The same grid of beta and the same counts recur in every histogram: lnGamma(c + beta) -
+    // lnGamma(beta) is kept per grid point and count (the values, and so the sums, are unchanged).
+    const auto& table = relevant_grid_table();
+    auto log_evidence = [&](std::size_t i, double beta) {
         double e = log_gamma(k * beta) - log_gamma(N + k * beta);
-        for (count c: seen) e += log_gamma(static_cast<double>(c) + beta) - log_gamma(beta);
+        for (count c: seen) e += table.rising(i, c);
         return e;
     };
     double best_beta = 1e-6, best = -INFINITY;
-    for (double log_beta = -14; log_beta <= 7; log_beta += 0.05) {
-        const double beta = std::exp(log_beta);
-        const double e = log_evidence(beta);
+    for (std::size_t i = 0; i < table.beta.size(); ++i) {
+        const double beta = table.beta[i];
+        const double e = log_evidence(i, beta);
         if (e > best) {
             best = e;
             best_beta = beta;
