@@ -1,4 +1,5 @@
 #include "analysis_memory.hpp"
+#include "ranked_trials.hpp"
 
 #include <rastrum/aligned_units.hpp>
 #include <rastrum/errors.hpp>
@@ -373,13 +374,14 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         // Label-shuffle null of the plug-in value: its mean is the plug-in bias under no information.
         const double plugin = stimulus_information(t, info_estimator::plugin, settings);
         random_stream rng(derive_seed(settings.seed, {0x5b0ffULL}));
-        labelled_responses shuffled = t;
+        detail::ranked_trials ranked(t.condition, t.conditions, t.response);  // the plug-in value of each relabelling
+        std::vector<std::uint32_t> shuffled = t.condition;
         std::size_t at_least = 0;
         double sum = 0;
         std::vector<double> null_values;
         for (unsigned i = 0; i < q.null_shuffles; ++i) {
-            shuffle(shuffled.condition, rng);
-            const double v = stimulus_information(shuffled, info_estimator::plugin, settings);
+            shuffle(shuffled, rng);
+            const double v = ranked.plugin_information_relabelled(shuffled);
             null_values.push_back(v);
             sum += v;
             if (v >= plugin - 1e-12) ++at_least;

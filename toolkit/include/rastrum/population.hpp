@@ -21,8 +21,9 @@ labelled_responses joint_responses(const std::vector<labelled_responses>& units)
 std::vector<labelled_responses> shuffled_within_conditions(const std::vector<labelled_responses>& units,
                                                            std::uint64_t seed);
 
-/// The most joint responses independent_information holds, summed over the conditions (about 100
-/// bytes each, in three maps at once): its default limit, which a caller with less memory lowers.
+/// The most joint responses independent_information visits, summed over the conditions: its default
+/// limit, which a caller lowers to bound the work (each joint response is visited once per condition;
+/// none is stored, so the limit bounds time, and memory estimates that count them err high).
 inline constexpr std::size_t independent_joint_limit = 1000000;
 
 /// What independent_information throws when the joint responses exceed its limit (exit 4 as any
