@@ -9,6 +9,7 @@
 #include <cmath>
 #include <cstring>
 #include <limits>
+#include <tuple>
 
 namespace rastrum {
 
@@ -113,8 +114,12 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
         r.coding_efficiency = r.estimate.total_rate > 0 ? r.estimate.info_rate / r.estimate.total_rate : nan;
         r.warnings = r.estimate.warnings;
         if (request.null_rotations > 0) {
+            // The rotated estimates use the real one's fit range, and only those lengths are computed:
+            // a rate depends on no other (words still grow from one letter up).
             direct_settings same_lengths = settings;
             same_lengths.fit_letters = r.estimate.fit_letters;
+            std::tie(same_lengths.letters_min, same_lengths.letters_max) = r.estimate.fit_letters;
+            same_lengths.every_length = false;
             r.null = rotation_null_distribution(letters, bin_width, same_lengths, request.null_rotations,
                                                 r.estimate.info_rate, settings.seed);
             if (r.null.p_value > 0.05) {

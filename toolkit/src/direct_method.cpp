@@ -2,6 +2,7 @@
 #include <rastrum/errors.hpp>
 #include <rastrum/format.hpp>
 #include <rastrum/extrapolation.hpp>
+#include <rastrum/fit_lengths.hpp>
 #include <rastrum/trial_partition.hpp>
 #include <rastrum/sparse_words.hpp>
 #include <rastrum/subset_tally.hpp>
@@ -258,6 +259,7 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
 
     sparse_words words(letters, std::max<word_code>(2, word_code{letters.largest} + 1), settings.letters_max);
     length_measurer measurer(splits, n_trials);
+    const fit_length_rule rule(settings);
     for (int L = 1; L <= settings.letters_max; ++L) {
         if (L > 1) words.grow();
         if (L < settings.letters_min) continue;
@@ -306,39 +308,17 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
         noise_all.push_back(le.noise_bits);
         total_other.push_back(total_inf[other]);
         noise_other.push_back(noise_inf[other]);
+        // No longer length can change the fit range, so none is computed (fit_lengths.hpp).
+        if (L < settings.letters_max && !settings.every_length && !rule.longer_length_may_enter(out.by_letters)) {
+            out.letters_stop = rule.stop_reason();
+            break;
+        }
     }
 
-    // Word lengths of the 1/L fit: the upper half of the well-sampled lengths (notes/methods.md).
-    if (settings.fit_letters) {
-        out.fit_letters = *settings.fit_letters;
-        out.fit_letters_from_user = true;
-    } else {
-        int longest_good = 0;
-        for (const auto& le: out.by_letters) {
-            if (!le.well_sampled) break;
-            longest_good = le.letters;
-        }
-        if (longest_good == 0) {
-            longest_good = settings.letters_min;
-            const auto& first = out.by_letters.front();
-            const std::string length = std::to_string(longest_good) + "-letter words";
-            if (std::abs(first.info_bits) < 2 * first.info_se_bits) {
-                out.warnings.push_back(
-                    "the information is indistinguishable from 0 and no word length passes the sampling rule: even for " +
-                    length + " the plug-in and jackknife bias corrections differ by " +
-                    format_fixed(first.estimator_spread_bits / std::max(first.info_se_bits, 1e-300), 1) +
-                    " standard errors; the rate rests on " + length + " alone");
-            } else {
-                out.warnings.push_back(
-                    "undersampled: no word length passes the sampling rule; even for " + length +
-                    " the plug-in and jackknife bias corrections differ by " +
-                    format_fixed(100 * first.estimator_spread_bits / std::abs(first.info_bits), 1) + "% of the information (tolerance " +
-                    format_fixed(100 * settings.bias_tolerance, 1) + "%), so the bias left in the rate is uncertain by about that "
-                    "much; the rate rests on " + length + " alone (more trials would help)");
-            }
-        }
-        out.fit_letters = {std::max(settings.letters_min, (longest_good + 1) / 2), longest_good};
-    }
+    fit_choice choice = rule.choose(out.by_letters);
+    out.fit_letters = choice.letters;
+    out.fit_letters_from_user = choice.from_user;
+    out.warnings = std::move(choice.warnings);
     const int from = out.fit_letters.first - settings.letters_min;
     const int to = out.fit_letters.second - settings.letters_min;
 
@@ -367,21 +347,6 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
                                  u.word_length * u.word_length + u.bias_correction * u.bias_correction);
     out.info_rate_ci95 = {out.info_rate - 1.96 * out.info_rate_se, out.info_rate + 1.96 * out.info_rate_se};
 
-    const bool rule_failed = !out.fit_letters_from_user && !out.by_letters.front().well_sampled;
-    if (out.fit_letters.first == out.fit_letters.second && !rule_failed) {
-        out.warnings.push_back("the rate comes from " + std::to_string(out.fit_letters.first) +
-                               "-letter words alone, without extrapolation to infinite word length: correlations "
-                               "between bins further apart are not counted");
-    }
-    if (out.fit_letters_from_user) {
-        for (const auto& le: out.by_letters) {
-            if (le.letters >= out.fit_letters.first && le.letters <= out.fit_letters.second && !le.well_sampled) {
-                out.warnings.push_back("--fit-letters includes undersampled " + std::to_string(le.letters) +
-                                       "-letter words: the extrapolation may report information that is not there");
-                break;
-            }
-        }
-    }
     // Few spikes per bin position across the trials: each position's noise entropy rests on one
     // spike or none and is underestimated, beyond what the corrections and the interval see
     // (notes/methods.md, "Sparse bins"; the threshold comes from the experiment there).

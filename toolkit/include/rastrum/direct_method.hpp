@@ -32,6 +32,14 @@ subset_estimator parse_subset_estimator(const std::string& name);
 /// see (measured with homogeneous firing, notes/methods.md, "Sparse bins").
 inline constexpr double sparse_spikes_per_position = 0.5;
 
+/// Why the direct method computed no longer word length (fit_lengths.hpp): the longest length asked
+/// for was reached, the end of the user's fit range, or a length past which the sampling rule lets
+/// no longer one into the fit.
+enum class length_stop { letters_max = 0, fit_letters = 1, sampling_rule = 2 };
+
+/// "--letters", "--fit-letters" or "sampling rule": the JSON's `letters_computed_until`.
+const char* length_stop_name(length_stop why);
+
 struct direct_settings {
     int letters_min = 1;                            // word lengths analysed: letters_min..letters_max
     int letters_max = 10;
@@ -44,6 +52,9 @@ struct direct_settings {
     /// (see notes/methods.md).
     double bias_tolerance = 0.03;
     std::uint64_t seed = 1;
+    /// Compute every length up to letters_max, also those past the first one after which no length
+    /// can enter the fit (for the curves in 1/L; the rates are the same either way).
+    bool every_length = false;
 };
 
 /// The extrapolation to infinite data at one word length, as a figure shows it: the mean entropy by
@@ -89,7 +100,10 @@ struct rate_uncertainty {
 struct direct_estimate {
     seconds bin_width = 0;
     std::size_t trials = 0;
+    /// The lengths computed, from letters_min on: up to letters_max, or to the first length after which
+    /// no longer one could enter the fit (see letters_stop).
     std::vector<letters_estimate> by_letters;
+    length_stop letters_stop = length_stop::letters_max;
     std::pair<int, int> fit_letters{0, 0};
     bool fit_letters_from_user = false;
     double total_rate = 0;   // [bits/s] extrapolated to infinite data and word length
