@@ -319,18 +319,11 @@ TEST(direct, rotations_computing_only_the_fit_range_give_the_same_null) {
     direct_settings fit_only = every;
     fit_only.letters_min = 2;
     fit_only.letters_max = 4;
-    const auto a = rotation_null_distribution(letters, 0.004, every, 7, 10.0, 21);
-    const auto b = rotation_null_distribution(letters, 0.004, fit_only, 7, 10.0, 21);
+    direct_workspace workspace;
+    const auto a = rotation_null_distribution(sparse_of(letters), 0.004, every, 7, 10.0, 21, workspace);
+    const auto b = rotation_null_distribution(sparse_of(letters), 0.004, fit_only, 7, 10.0, 21, workspace);
     EXPECT_EQ(a.info_rates, b.info_rates);
     EXPECT_EQ(a.p_value, b.p_value);
     EXPECT_EQ(a.info_rates.size(), 7u);
 }
 
-TEST(direct, rotating_trials_keeps_each_trials_letters) {
-    letter_matrix m;
-    m.trials = 2;
-    m.bins = 4;
-    m.letters = {1, 5, 2, 6, 3, 7, 4, 8};  // bin-major: trial 0 holds 1 2 3 4, trial 1 holds 5 6 7 8
-    const auto r = rotate_trials(m, {1, 3});
-    EXPECT_EQ(r.letters, (std::vector<letter>{2, 8, 3, 5, 4, 6, 1, 7}));
-}

@@ -59,13 +59,15 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
                                 " selected");
     }
     const seconds duration = common_duration(rec, trials);
-    // Words, their codes and their sort orders take about 24 bytes per bin and trial per task.
+    // A limit from when every bin of every trial was held as a letter (24 bytes each with the words'
+    // codes and sort orders); the letters are now sparse, but word lists still grow with bins x trials
+    // where spikes are dense, so the limit stays.
     const double largest_cells =
         static_cast<double>(trials.size()) * duration / (*std::min_element(request.bin_ms.begin(), request.bin_ms.end()) / 1000);
     if (largest_cells > 1 << 28) {
         throw insufficient_data(rec.source + ": " + std::to_string(trials.size()) + " trials of " + format_number(duration) +
                                 " s at the narrowest bin make " + format_number(largest_cells) +
-                                " bins to hold at once (more than 2^28, about 6 GiB); use a wider bin or fewer trials");
+                                " bins to hold at once (more than 2^28); use a wider bin or fewer trials");
     }
     std::vector<std::string> pooled_labels;
     if (!request.stimulus && rec.has_stimulus()) {
@@ -80,7 +82,15 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
     aligned_units aligned(rec, trials, uses);
 
     std::vector<direct_record> records(units.size() * n_bins);
-    parallel_for(records.size(), request.threads, [&](std::size_t task) {
+    // Each worker keeps its letters and the estimates' buffers from task to task.
+    struct kept_per_worker {
+        sparse_letters letters;
+        direct_workspace workspace;
+    };
+    std::vector<kept_per_worker> kept(std::min<std::size_t>(effective_threads(request.threads), records.size()));
+    parallel_for_workers(records.size(), request.threads, [&](std::size_t task, unsigned worker) {
+        sparse_letters& letters = kept[worker].letters;
+        direct_workspace& workspace = kept[worker].workspace;
         const std::size_t u = units[task / n_bins];
         const double bin_ms = request.bin_ms[task % n_bins];
         const seconds bin_width = bin_ms / 1000.0;
@@ -92,11 +102,10 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
         r.trial_duration = duration;
         const std::size_t bins = whole_bins(duration, bin_width);
         const seconds analysed = static_cast<double>(bins) * bin_width;
-        letter_matrix letters;
         count spikes = 0;
         {  // the spike times are needed only until they are letters
             const aligned_units::hold unit(aligned, u);
-            letters = bin_spikes(unit.spikes(), bin_width, bins, request.binary);
+            bin_spikes_sparse(unit.spikes(), bin_width, bins, request.binary, letters);
             spikes = spikes_before(unit.spikes(), analysed);
         }
         r.mean_rate_hz = static_cast<double>(spikes) / (static_cast<double>(trials.size()) * analysed);
@@ -105,7 +114,7 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
         // Each task's randomness depends only on its own unit and bin width.
         settings.seed = derive_seed(request.settings.seed, {text_hash(r.unit), bits_of(bin_ms)});
         try {
-            r.estimate = estimate_direct(letters, bin_width, settings);
+            r.estimate = estimate_direct(letters, bin_width, settings, workspace);
         } catch (const insufficient_data& e) {
             throw insufficient_data(rec.source + ", unit " + r.unit + " at " + format_number(bin_ms) + " ms: " + e.what());
         }
@@ -121,7 +130,7 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
             std::tie(same_lengths.letters_min, same_lengths.letters_max) = r.estimate.fit_letters;
             same_lengths.every_length = false;
             r.null = rotation_null_distribution(letters, bin_width, same_lengths, request.null_rotations,
-                                                r.estimate.info_rate, settings.seed);
+                                                r.estimate.info_rate, settings.seed, workspace);
             if (r.null.p_value > 0.05) {
                 r.warnings.push_back("not distinguishable from trials rotated out of register with the stimulus (p = " +
                                      format_number(r.null.p_value) + ")");

@@ -4,8 +4,8 @@
 #include <rastrum/extrapolation.hpp>
 #include <rastrum/fit_lengths.hpp>
 #include <rastrum/trial_partition.hpp>
-#include <rastrum/sparse_words.hpp>
-#include <rastrum/subset_tally.hpp>
+
+#include "direct_workspace.hpp"
 
 #include <algorithm>
 #include <array>
@@ -49,74 +49,6 @@ void check_direct_settings(const direct_settings& s) {
 }
 
 namespace {
-
-/// Entropies of every subset of every split at one word length, by each subset estimator.
-struct subset_entropies {
-    std::array<std::vector<double>, subset_estimator_count> total;  // [estimator][split * 15 + subset]
-    std::array<std::vector<double>, subset_estimator_count> noise;  // averaged over start positions
-    count samples = 0;
-    count distinct = 0;
-};
-
-using entropy_estimator = double (*)(const mean_summary&);
-const std::array<entropy_estimator, subset_estimator_count> estimators{
-    static_cast<entropy_estimator>(plugin_entropy), static_cast<entropy_estimator>(miller_madow_entropy),
-    static_cast<entropy_estimator>(jackknife_entropy)};
-
-class length_measurer {
-public:
-    length_measurer(const std::vector<nested_split>& splits, std::size_t trials):
-        cells_(splits.size() * nested_subsets), noise_(splits, trials, trials),
-        total_(splits, trials, pooled_dense_limit) {}
-
-    subset_entropies measure(const sparse_words& words) {
-        subset_entropies e;
-        measure_noise(words, e);
-        measure_total(words, e);
-        return e;
-    }
-
-private:
-    // Counts up to this are tabulated for the pooled words; larger ones are rare and summed directly.
-    static constexpr count pooled_dense_limit = 4096;
-
-    void estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out, const subset_tally& tally,
-                        double histograms) const {
-        for (auto& v: out) v.assign(cells_, 0.0);
-        for (std::size_t c = 0; c < cells_; ++c) {
-            const count_summary merged = tally.summary(c / nested_subsets, static_cast<int>(c % nested_subsets));
-            const count samples_each = static_cast<count>(static_cast<double>(merged.samples) / histograms + 0.5);
-            const mean_summary mean = mean_of_histograms(merged, histograms, samples_each);
-            for (std::size_t m = 0; m < static_cast<std::size_t>(subset_estimator_count); ++m) out[m][c] = estimators[m](mean);
-        }
-    }
-
-    // The word at one start position, across the trials of each subset; averaged over positions by
-    // averaging the histograms' sums (see mean_summary), which the tally adds up exactly.
-    void measure_noise(const sparse_words& words, subset_entropies& e) {
-        const std::size_t positions = words.positions();
-        noise_.clear();
-        for (std::size_t t = 0; t < positions; ++t) {
-            noise_.add_histogram(words.begin_at(t), words.end_at(t), 1);
-        }
-        estimate_cells(e.noise, noise_, static_cast<double>(positions));
-    }
-
-    // Words pooled over every start position and every trial of each subset.
-    void measure_total(const sparse_words& words, subset_entropies& e) {
-        const auto& pooled = words.pooled();
-        total_.clear();
-        total_.add_histogram(pooled.data(), pooled.data() + pooled.size(), words.positions());
-        estimate_cells(e.total, total_, 1.0);
-        const count_summary all = total_.summary(0, 0);
-        e.samples = all.samples;
-        e.distinct = all.distinct;
-    }
-
-    std::size_t cells_;
-    subset_tally noise_;
-    subset_tally total_;
-};
 
 /// Extrapolation to infinite data from all trials, the halves and the quarters of every split;
 /// each level weighs as much as the others in the fit.
@@ -224,7 +156,18 @@ std::vector<double> slice(const std::vector<double>& v, int from, int to) {
 
 }  // namespace
 
+direct_workspace::direct_workspace(): parts_(std::make_unique<parts>()) {}
+direct_workspace::~direct_workspace() = default;
+direct_workspace::direct_workspace(direct_workspace&&) noexcept = default;
+direct_workspace& direct_workspace::operator=(direct_workspace&&) noexcept = default;
+
 direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width, const direct_settings& settings) {
+    direct_workspace workspace;
+    return estimate_direct(sparse_of(letters), bin_width, settings, workspace);
+}
+
+direct_estimate estimate_direct(const sparse_letters& letters, seconds bin_width, const direct_settings& settings,
+                                direct_workspace& workspace) {
     check_direct_settings(settings);
     const std::size_t n_trials = letters.trials;
     if (n_trials < static_cast<std::size_t>(nested_blocks)) {
@@ -238,7 +181,9 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
                                 std::to_string(settings.letters_max + 1) + " (narrower bins or fewer letters)");
     }
 
-    const auto splits = make_nested_splits(n_trials, settings.splits, settings.seed);
+    direct_workspace::parts& kept = workspace.inside();
+    kept.splits = make_nested_splits(n_trials, settings.splits, settings.seed);
+    const auto& splits = kept.splits;
     std::vector<std::vector<std::size_t>> sizes;
     for (const auto& s: splits) sizes.push_back(subset_sizes(s));
     const std::size_t n_halves = 2 * splits.size();
@@ -257,13 +202,15 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
     std::vector<double> total_all, noise_all, total_other, noise_other;
     std::vector<std::vector<double>> total_half(n_halves), noise_half(n_halves);
 
-    sparse_words words(letters, std::max<word_code>(2, word_code{letters.largest} + 1), settings.letters_max);
-    length_measurer measurer(splits, n_trials);
+    sparse_words& words = kept.words;
+    words.start(letters, std::max<word_code>(2, word_code{letters.largest} + 1), settings.letters_max);
+    length_measurer& measurer = kept.measurer;
+    measurer.reset(splits, n_trials);
     const fit_length_rule rule(settings);
     for (int L = 1; L <= settings.letters_max; ++L) {
         if (L > 1) words.grow();
         if (L < settings.letters_min) continue;
-        const subset_entropies e = measurer.measure(words);
+        const subset_entropies& e = measurer.measure(words);
 
         letters_estimate le;
         le.letters = L;

@@ -26,11 +26,19 @@ void compose(const T* eighths, T* subsets) {
 
 }  // namespace
 
-subset_tally::subset_tally(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit):
-    splits_(splits), trials_(trials), lanes_(splits.size() * nested_blocks),
-    dense_limit_(std::max<count>(dense_limit, 2)), rows_(static_cast<std::size_t>(dense_limit_) + 1),
-    cells_(splits.size() * nested_subsets) {
-    const std::size_t cells = splits.size() * nested_subsets;
+void subset_tally::reset(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit) {
+    // The table of the same shape is kept: only its rows written since the last clear are zeroed.
+    const bool same_table = !frequency_.empty() && std::max<count>(dense_limit, 2) == dense_limit_ &&
+                            splits.size() * nested_subsets == cells_;
+    if (same_table) clear();
+    splits_ = &splits;
+    splits_count_ = splits.size();
+    trials_ = trials;
+    lanes_ = splits.size() * nested_blocks;
+    dense_limit_ = std::max<count>(dense_limit, 2);
+    rows_ = static_cast<std::size_t>(dense_limit_) + 1;
+    cells_ = splits.size() * nested_subsets;
+    const std::size_t cells = cells_;
     lane_of_.assign(trials_ * lanes_, 0);
     lane_index_.assign(trials_ * splits.size(), 0);
     eighth_size_.assign(lanes_, 0);
@@ -45,14 +53,18 @@ subset_tally::subset_tally(const std::vector<nested_split>& splits, std::size_t 
         }
         compose(eighth_size_.data() + s * nested_blocks, cell_size_.data() + s * nested_subsets);
     }
-    n_log2_n_.resize(rows_);
-    leave_one_out_.resize(rows_);
-    for (count n = 0; n <= dense_limit_; ++n) {
-        n_log2_n_[n] = n_log2_n(n);
-        leave_one_out_[n] = static_cast<double>(n) * n_log2_n_step(static_cast<double>(n));
+    if (n_log2_n_.size() != rows_) {
+        n_log2_n_.resize(rows_);
+        leave_one_out_.resize(rows_);
+        for (count n = 0; n <= dense_limit_; ++n) {
+            n_log2_n_[n] = n_log2_n(n);
+            leave_one_out_[n] = static_cast<double>(n) * n_log2_n_step(static_cast<double>(n));
+        }
     }
-    frequency_.assign(rows_ * cells_, 0);
+    if (!same_table) frequency_.assign(rows_ * cells_, 0);
+    largest_ = 0;
     beyond_.assign(cells, count_summary{});
+    per_trial_ = 0;
     eighths_.assign(lanes_, 0);
     partial_.assign(lanes_, 0);
 }
@@ -68,7 +80,7 @@ void subset_tally::count_eighths(const entry* first, const entry* last) {
     std::fill(eighths_.begin(), eighths_.end(), 0u);
     const std::size_t lanes = lanes_;
     if (last - first <= 12) {  // lane by lane; more by adding each trial's byte lanes
-        const std::size_t splits = splits_.size();
+        const std::size_t splits = splits_count_;
         for (; first < last; ++first) {
             const std::uint32_t* lane = lane_index_.data() + first->trial * splits;
             for (std::size_t s = 0; s < splits; ++s) ++eighths_[lane[s]];
@@ -122,7 +134,7 @@ void subset_tally::tally(const std::uint32_t* eighths) {
     const count limit = dense_limit_;
     const std::size_t cells = cells_;
     std::uint32_t subsets[nested_subsets];
-    for (std::size_t s = 0; s < splits_.size(); ++s) {
+    for (std::size_t s = 0; s < splits_count_; ++s) {
         compose(eighths + s * nested_blocks, subsets);
         // No subset holds a word more often than the whole set does.
         if (s == 0) largest_ = std::max(largest_, std::min<count>(subsets[0], limit));
@@ -146,8 +158,8 @@ void subset_tally::tally_few(const entry* first, const entry* last) {
     const auto r = static_cast<std::size_t>(last - first);
     bump(0, r);  // the whole set, kept in split 0
     int block[few_occurrences];
-    for (std::size_t s = 0; s < splits_.size(); ++s) {
-        const std::uint8_t* block_of = splits_[s].block_of.data();
+    for (std::size_t s = 0; s < splits_count_; ++s) {
+        const std::uint8_t* block_of = (*splits_)[s].block_of.data();
         const std::size_t cells = s * nested_subsets;
         if (r == 2) {
             // Two occurrences share the subsets of every level above the highest bit where their blocks differ.
@@ -207,7 +219,7 @@ void subset_tally::add_histogram(const entry* first, const entry* last, count pe
         listed_.assign(trials_, 0);
         add_runs<true>(first, last);
         std::fill(eighths_.begin(), eighths_.end(), 0u);
-        const std::size_t splits = splits_.size();
+        const std::size_t splits = splits_count_;
         for (std::size_t k = 0; k < trials_; ++k) {
             for (std::size_t s = 0; s < splits; ++s) eighths_[lane_index_[k * splits + s]] += listed_[k];
         }

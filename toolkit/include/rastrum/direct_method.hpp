@@ -7,11 +7,13 @@
 /// The formulas, the rule that picks the word lengths of the 1/L fit, and the evidence for that
 /// rule are in notes/methods.md.
 #include <rastrum/binning.hpp>
+#include <rastrum/sparse_letters.hpp>
 #include <rastrum/extrapolation.hpp>
 #include <rastrum/types.hpp>
 
 #include <array>
 #include <cstdint>
+#include <memory>
 #include <optional>
 #include <string>
 #include <utility>
@@ -118,8 +120,28 @@ struct direct_estimate {
     std::vector<std::string> warnings;
 };
 
+/// Buffers one thread reuses from one estimate to the next (words, subset tallies, rotated letters),
+/// so that estimates over many units, bin widths and rotations allocate almost nothing. Not for use
+/// by two threads at once; the numbers never depend on what it held before.
+class direct_workspace {
+public:
+    direct_workspace();
+    ~direct_workspace();
+    direct_workspace(direct_workspace&&) noexcept;
+    direct_workspace& operator=(direct_workspace&&) noexcept;
+
+    struct parts;  // toolkit/src/direct_workspace.hpp
+    parts& inside() { return *parts_; }
+
+private:
+    std::unique_ptr<parts> parts_;
+};
+
 /// Needs at least 8 trials and at least `letters_max` bins (throws insufficient_data saying what
 /// is missing); throws usage_error for an impossible range or a fit range outside it.
+direct_estimate estimate_direct(const sparse_letters& letters, seconds bin_width, const direct_settings& settings,
+                                direct_workspace& workspace);
+/// The same from a letter matrix, with buffers of its own.
 direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width, const direct_settings& settings);
 
 /// Checks a settings object before any data are read. Throws usage_error naming the setting.

@@ -28,7 +28,14 @@ namespace rastrum {
 class subset_tally {
 public:
     /// Counts up to `dense_limit` are tallied in a table; larger ones (rare) are summed directly.
-    subset_tally(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit);
+    /// `splits` must outlive the tally's use (until the next reset).
+    subset_tally(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit) {
+        reset(splits, trials, dense_limit);
+    }
+    subset_tally() = default;
+
+    /// Starts again on other splits (or trials), reusing the buffers: forgets every word and histogram.
+    void reset(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit);
 
     /// Forgets every word and histogram.
     void clear();
@@ -67,12 +74,13 @@ private:
     }
     static constexpr std::ptrdiff_t few_occurrences = 3;
 
-    const std::vector<nested_split>& splits_;
-    std::size_t trials_;
-    std::size_t lanes_;                     // splits * 8
-    count dense_limit_;
-    std::size_t rows_;                      // dense_limit + 1
-    std::size_t cells_;                     // splits * 15
+    const std::vector<nested_split>* splits_ = nullptr;
+    std::size_t splits_count_ = 0;
+    std::size_t trials_ = 0;
+    std::size_t lanes_ = 0;                 // splits * 8
+    count dense_limit_ = 2;
+    std::size_t rows_ = 0;                  // dense_limit + 1
+    std::size_t cells_ = 0;                 // splits * 15
     std::vector<std::uint8_t> lane_of_;     // trials x lanes_: 1 in lane split * 8 + block of the trial
     std::vector<std::uint32_t> lane_index_; // trials x splits: the lane of the trial in each split
     std::vector<count> eighth_size_;        // lanes_: trials in each eighth
