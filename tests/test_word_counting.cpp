@@ -65,11 +65,20 @@ TEST_P(subset_tally_splits, equals_direct_counts_in_every_subset) {
         }
         h.words = kept;
     }
+    const auto other_splits = make_nested_splits(trials, GetParam(), 2);
     for (const count dense_limit: {count{5}, count{4096}}) {
         subset_tally tally(splits, trials, dense_limit);
-        for (int repeat = 0; repeat < 2; ++repeat) {  // clear() must forget everything
+        for (int repeat = 0; repeat < 3; ++repeat) {  // clear() and reset() must forget everything
+            if (repeat == 1) {
+                tally.reset(other_splits, trials, dense_limit);
+                for (const auto& h: histograms) tally.add_histogram(h.words.data(), h.words.data() + h.words.size(), h.per_trial);
+                tally.reset(splits, trials, dense_limit);
+            }
             tally.clear();
             for (const auto& h: histograms) tally.add_histogram(h.words.data(), h.words.data() + h.words.size(), h.per_trial);
+            std::vector<count_summary> all;
+            tally.summaries(all);
+            ASSERT_EQ(all.size(), splits.size() * nested_subsets);
             for (std::size_t s = 0; s < splits.size(); ++s) {
                 for (int level = 0; level < nested_levels; ++level) {
                     for (int b = 0; b < (1 << level); ++b) {
@@ -92,6 +101,11 @@ TEST_P(subset_tally_splits, equals_direct_counts_in_every_subset) {
                             expected.merge(one);
                         }
                         const auto got = tally.summary(s, subset_index(level, b));
+                        const auto& at_once = all[s * nested_subsets + static_cast<std::size_t>(subset_index(level, b))];
+                        EXPECT_EQ(at_once.samples, got.samples);
+                        EXPECT_EQ(at_once.distinct, got.distinct);
+                        EXPECT_EQ(at_once.sum_n_log2_n, got.sum_n_log2_n);  // the same sums in the same order
+                        EXPECT_EQ(at_once.sum_leave_one_out, got.sum_leave_one_out);
                         EXPECT_EQ(got.samples, expected.samples);
                         EXPECT_EQ(got.distinct, expected.distinct);
                         EXPECT_NEAR(got.sum_n_log2_n, expected.sum_n_log2_n, 1e-9 * expected.sum_n_log2_n);

@@ -53,6 +53,7 @@ private:
     subset_tally noise_;
     subset_tally total_;
     subset_entropies e_;
+    mutable std::vector<count_summary> summaries_;  // of every cell, while estimating
 };
 
 struct direct_workspace::parts {

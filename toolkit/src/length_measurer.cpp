@@ -14,8 +14,9 @@ const std::array<entropy_estimator, subset_estimator_count> estimators{
 void length_measurer::estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out,
                                      const subset_tally& tally, double histograms) const {
     for (auto& v: out) v.assign(cells_, 0.0);
+    tally.summaries(summaries_);
     for (std::size_t c = 0; c < cells_; ++c) {
-        const count_summary merged = tally.summary(c / nested_subsets, static_cast<int>(c % nested_subsets));
+        const count_summary& merged = summaries_[c];
         const count samples_each = static_cast<count>(static_cast<double>(merged.samples) / histograms + 0.5);
         const mean_summary mean = mean_of_histograms(merged, histograms, samples_each);
         for (std::size_t m = 0; m < static_cast<std::size_t>(subset_estimator_count); ++m) out[m][c] = estimators[m](mean);
@@ -39,7 +40,7 @@ void length_measurer::measure_total(const sparse_words& words, subset_entropies&
     total_.clear();
     total_.add_histogram(pooled.data(), pooled.data() + pooled.size(), words.positions());
     estimate_cells(e.total, total_, 1.0);
-    const count_summary all = total_.summary(0, 0);
+    const count_summary& all = summaries_[0];  // the whole set, as estimate_cells left them
     e.samples = all.samples;
     e.distinct = all.distinct;
 }

@@ -61,7 +61,13 @@ void subset_tally::reset(const std::vector<nested_split>& splits, std::size_t tr
             leave_one_out_[n] = static_cast<double>(n) * n_log2_n_step(static_cast<double>(n));
         }
     }
-    if (!same_table) frequency_.assign(rows_ * cells_, 0);
+    if (!same_table) {
+        frequency_.assign(rows_ * cells_, 0);
+        row_marked_.assign(rows_, 0);
+        marked_rows_.clear();
+    }
+    // Counts above the trial count (and 64) are few: a word pooled over positions that often.
+    wide_row_ = std::min<count>(dense_limit_, std::max<count>(trials_, 64));
     largest_ = 0;
     beyond_.assign(cells, count_summary{});
     per_trial_ = 0;
@@ -70,7 +76,12 @@ void subset_tally::reset(const std::vector<nested_split>& splits, std::size_t tr
 }
 
 void subset_tally::clear() {
-    std::fill_n(frequency_.begin(), (largest_ + 1) * cells_, 0u);
+    std::fill_n(frequency_.begin(), (std::min(largest_, wide_row_) + 1) * cells_, 0u);
+    for (const count n: marked_rows_) {
+        std::fill_n(frequency_.begin() + static_cast<std::ptrdiff_t>(n * cells_), cells_, 0u);
+        row_marked_[n] = 0;
+    }
+    marked_rows_.clear();
     largest_ = 0;
     std::fill(beyond_.begin(), beyond_.end(), count_summary{});
     per_trial_ = 0;
@@ -128,6 +139,19 @@ void subset_tally::add_byte_lanes(const entry* first, const entry* last) {
 }
 
 void subset_tally::tally(const std::uint32_t* eighths) {
+    // No subset holds a word more often than the whole set: only a word seen more than wide_row_
+    // times can use a row that must be marked.
+    count whole = 0;
+    for (int b = 0; b < nested_blocks; ++b) whole += eighths[b];
+    if (std::min(whole, dense_limit_) > wide_row_) {
+        tally_rows<true>(eighths);
+    } else {
+        tally_rows<false>(eighths);
+    }
+}
+
+template <bool wide>
+void subset_tally::tally_rows(const std::uint32_t* eighths) {
     // Members in locals: after a store through a member's array the compiler must otherwise reload
     // the members, a chain of store-to-load latencies (measured: 20% of the time at 2^16 words).
     std::uint32_t* const frequency = frequency_.data();
@@ -150,6 +174,9 @@ void subset_tally::tally(const std::uint32_t* eighths) {
                 continue;
             }
             ++frequency[n * cells + cell];
+            if constexpr (wide) {
+                if (n > wide_row_) mark_row(n);
+            }
         }
     }
 }
@@ -234,20 +261,58 @@ void subset_tally::add_histogram(const entry* first, const entry* last, count pe
     per_trial_ += per_trial;
 }
 
+template <typename Visit>
+void subset_tally::for_each_row(Visit&& visit) const {
+    const count dense_end = std::min(largest_, wide_row_);
+    for (count n = 2; n <= dense_end; ++n) visit(n);
+    sorted_rows_.assign(marked_rows_.begin(), marked_rows_.end());
+    std::sort(sorted_rows_.begin(), sorted_rows_.end());
+    for (const count n: sorted_rows_) visit(n);
+}
+
+void subset_tally::add_row(count n, count_summary* out, count* repeats) const {
+    const std::uint32_t* row = frequency_.data() + n * cells_;
+    for (std::size_t cell = 0; cell < cells_; ++cell) {
+        const count words = row[cell];
+        if (words == 0) continue;
+        repeats[cell] += words * (n - 1);
+        out[cell].sum_n_log2_n += static_cast<double>(words) * n_log2_n_[n];
+        out[cell].sum_leave_one_out += static_cast<double>(words) * leave_one_out_[n];
+    }
+}
+
+// Words seen once in a subset add only to its samples and distinct words, and those follow from the
+// samples: distinct = samples - sum over words seen n >= 2 times of (n - 1). Each cell's sums are
+// added up in ascending n, beyond_ first, whether one cell or all are summarised.
+void subset_tally::summaries(std::vector<count_summary>& out) const {
+    out.assign(beyond_.begin(), beyond_.end());
+    repeats_.resize(cells_);
+    for (std::size_t cell = 0; cell < cells_; ++cell) repeats_[cell] = out[cell].samples - out[cell].distinct;
+    for_each_row([&](count n) { add_row(n, out.data(), repeats_.data()); });
+    for (std::size_t cell = 0; cell < cells_; ++cell) {
+        // The whole set is the same in every split: it is kept in split 0 only.
+        const std::size_t kept = cell % nested_subsets == static_cast<std::size_t>(subset_index(0, 0)) ? 0 : cell;
+        if (kept != cell) {
+            out[cell] = out[kept];
+            continue;
+        }
+        out[cell].samples = per_trial_ * cell_size_[cell];
+        out[cell].distinct = out[cell].samples - repeats_[cell];
+    }
+}
+
 count_summary subset_tally::summary(std::size_t split, int subset) const {
     if (subset == subset_index(0, 0)) split = 0;
     const std::size_t cell = split * nested_subsets + static_cast<std::size_t>(subset);
-    // Words seen once in a subset add only to its samples and distinct words, and those follow
-    // from the samples: distinct = samples - sum over words seen n >= 2 times of (n - 1).
     count_summary s = beyond_[cell];
     count repeats = s.samples - s.distinct;  // occurrences beyond the first of each word seen twice or more
-    for (count n = 2; n <= largest_; ++n) {
+    for_each_row([&](count n) {
         const count words = frequency_[n * cells_ + cell];
-        if (words == 0) continue;
+        if (words == 0) return;
         repeats += words * (n - 1);
         s.sum_n_log2_n += static_cast<double>(words) * n_log2_n_[n];
         s.sum_leave_one_out += static_cast<double>(words) * leave_one_out_[n];
-    }
+    });
     s.samples = per_trial_ * cell_size_[cell];
     s.distinct = s.samples - repeats;
     return s;

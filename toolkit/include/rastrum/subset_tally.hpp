@@ -48,6 +48,9 @@ public:
 
     /// Summary of the summed histograms of subset `subset_index(level, block)` of split `split`.
     count_summary summary(std::size_t split, int subset) const;
+    /// The same for every subset of every split at once (out[split * 15 + subset]), in one pass over
+    /// the table: the same numbers, bit for bit, as summary() of each.
+    void summaries(std::vector<count_summary>& out) const;
 
 private:
     /// Every run of equal codes as a word; with `by_trial`, listed_ counts the entries of each trial.
@@ -71,7 +74,22 @@ private:
         }
         ++frequency_[n * cells_ + cell];
         largest_ = std::max(largest_, n);
+        if (n > wide_row_) mark_row(n);
     }
+    template <bool wide>
+    void tally_rows(const std::uint32_t* eighths);
+    /// Rows above wide_row_ are used by few words; they are listed when first used, so that summaries
+    /// and clearing visit those rows only, not every row up to the largest count.
+    void mark_row(count n) {
+        if (row_marked_[n]) return;
+        row_marked_[n] = 1;
+        marked_rows_.push_back(n);
+    }
+    /// Adds row n of the table to the summaries of every cell (with the repeats of its words).
+    void add_row(count n, count_summary* out, count* repeats) const;
+    /// The rows in use in ascending order: every row from 2 to wide_row_, then the marked ones.
+    template <typename Visit>
+    void for_each_row(Visit&& visit) const;
     static constexpr std::ptrdiff_t few_occurrences = 3;
 
     const std::vector<nested_split>* splits_ = nullptr;
@@ -92,6 +110,11 @@ private:
     // cell's start a near multiple of 4 KiB apart, onto a few cache sets (7x slower at 2^16 words).
     std::vector<std::uint32_t> frequency_;
     count largest_ = 0;                     // the largest tabulated n of any cell
+    count wide_row_ = 0;                    // rows above this are marked when used
+    std::vector<std::uint8_t> row_marked_;  // rows_
+    std::vector<count> marked_rows_;
+    mutable std::vector<count> sorted_rows_;
+    mutable std::vector<count> repeats_;    // per cell, while summarising
     std::vector<count_summary> beyond_;     // per cell, words seen more than dense_limit times
     count per_trial_ = 0;                   // words per trial, over the closed histograms
     std::vector<std::uint32_t> eighths_;    // lanes_
