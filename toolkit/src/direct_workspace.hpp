@@ -44,8 +44,8 @@ private:
     // Counts up to this are tabulated for the pooled words; larger ones are rare and summed directly.
     static constexpr count pooled_dense_limit = 4096;
 
-    void estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out, const subset_tally& tally,
-                        double histograms) const;
+    void estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out, subset_tally& tally,
+                        double histograms);
     void measure_noise(const sparse_words& words, subset_entropies& e);
     void measure_total(const sparse_words& words, subset_entropies& e);
 
@@ -53,7 +53,7 @@ private:
     subset_tally noise_;
     subset_tally total_;
     subset_entropies e_;
-    mutable std::vector<count_summary> summaries_;  // of every cell, while estimating
+    std::vector<count_summary> summaries_;  // of every cell, while estimating
 };
 
 struct direct_workspace::parts {

@@ -12,7 +12,7 @@ const std::array<entropy_estimator, subset_estimator_count> estimators{
 }  // namespace
 
 void length_measurer::estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out,
-                                     const subset_tally& tally, double histograms) const {
+                                     subset_tally& tally, double histograms) {
     for (auto& v: out) v.assign(cells_, 0.0);
     tally.summaries(summaries_);
     for (std::size_t c = 0; c < cells_; ++c) {

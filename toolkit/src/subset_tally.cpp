@@ -73,6 +73,8 @@ void subset_tally::reset(const std::vector<nested_split>& splits, std::size_t tr
     per_trial_ = 0;
     eighths_.assign(lanes_, 0);
     partial_.assign(lanes_, 0);
+    zero_full_ = 0;
+    zero_less_one_.assign(trials_, 0);
 }
 
 void subset_tally::clear() {
@@ -82,6 +84,8 @@ void subset_tally::clear() {
         row_marked_[n] = 0;
     }
     marked_rows_.clear();
+    zero_full_ = 0;
+    std::fill(zero_less_one_.begin(), zero_less_one_.end(), 0u);
     largest_ = 0;
     std::fill(beyond_.begin(), beyond_.end(), count_summary{});
     per_trial_ = 0;
@@ -239,7 +243,82 @@ void subset_tally::add_runs(const entry* first, const entry* last) {
     }
 }
 
+void subset_tally::add_zero_word_few(const entry* first, const entry* last) {
+    const auto listed = static_cast<std::size_t>(last - first);
+    ++zero_full_;  // every cell holds the all-zero word once per trial, less the listed words below
+    if (listed == 0) return;
+    if (listed == 1) {  // the cells holding this trial, one less: settled per trial
+        ++zero_less_one_[first->trial];
+        return;
+    }
+    // Cell by cell: the all-zero word is seen |cell| - g times where the cell holds g listed words,
+    // instead of |cell| times.
+    std::uint32_t* const frequency = frequency_.data();
+    const std::size_t cells = cells_;
+    auto fewer = [&](std::size_t cell, count g) {
+        ++frequency[(cell_size_[cell] - g) * cells + cell];
+        --frequency[cell_size_[cell] * cells + cell];  // wraps below 0 until settled; unsigned arithmetic is exact
+    };
+    fewer(0, listed);  // the whole set, kept in split 0
+    int block[few_listed];
+    for (std::size_t s = 0; s < splits_count_; ++s) {
+        const std::uint8_t* block_of = (*splits_)[s].block_of.data();
+        for (std::size_t j = 0; j < listed; ++j) block[j] = block_of[first[j].trial];
+        for (int level = 1; level < nested_levels; ++level) {
+            const int shift = nested_levels - 1 - level;
+            for (std::size_t j = 0; j < listed; ++j) {
+                const int b = block[j] >> shift;
+                bool seen = false;
+                for (std::size_t i = 0; i < j && !seen; ++i) seen = (block[i] >> shift) == b;
+                if (seen) continue;
+                count g = 1;
+                for (std::size_t i = j + 1; i < listed; ++i) g += (block[i] >> shift) == b;
+                fewer(s * nested_subsets + static_cast<std::size_t>(subset_index(level, b)), g);
+            }
+        }
+    }
+}
+
+void subset_tally::settle() {
+    if (zero_full_ == 0) return;
+    std::uint32_t* const frequency = frequency_.data();
+    const std::size_t cells = cells_;
+    const auto full = static_cast<std::uint32_t>(zero_full_);
+    for (std::size_t cell = 0; cell < cells; ++cell) {
+        // The whole set is kept in split 0 only.
+        if (cell >= nested_subsets && cell % nested_subsets == 0) continue;
+        frequency[cell_size_[cell] * cells + cell] += full;
+    }
+    for (std::size_t k = 0; k < trials_; ++k) {
+        const std::uint32_t times = zero_less_one_[k];
+        if (times == 0) continue;
+        auto fewer = [&](std::size_t cell) {
+            frequency[(cell_size_[cell] - 1) * cells + cell] += times;
+            frequency[cell_size_[cell] * cells + cell] -= times;
+        };
+        fewer(0);
+        for (std::size_t s = 0; s < splits_count_; ++s) {
+            const int b = (*splits_)[s].block_of[k];
+            for (int level = 1; level < nested_levels; ++level) {
+                fewer(s * nested_subsets + static_cast<std::size_t>(subset_index(level, b >> (nested_levels - 1 - level))));
+            }
+        }
+        zero_less_one_[k] = 0;
+    }
+    zero_full_ = 0;
+}
+
 void subset_tally::add_histogram(const entry* first, const entry* last, count per_trial) {
+    // A word at one position across the trials (the noise entropy's histograms) lists few words at
+    // fine bins: the all-zero word then differs from "every trial" in a few cells only, and is
+    // counted by those differences (add_zero_word_few).
+    if (per_trial == 1 && static_cast<std::size_t>(last - first) <= few_listed) {
+        add_runs<false>(first, last);
+        add_zero_word_few(first, last);
+        largest_ = std::max<count>(largest_, trials_);
+        per_trial_ += 1;
+        return;
+    }
     // The all-zero word takes what the listed words leave of each eighth. Many listed words are
     // counted per trial in the same pass that finds the runs (one pass over memory), then per eighth.
     if (static_cast<std::size_t>(last - first) > 4 * trials_) {
@@ -284,7 +363,8 @@ void subset_tally::add_row(count n, count_summary* out, count* repeats) const {
 // Words seen once in a subset add only to its samples and distinct words, and those follow from the
 // samples: distinct = samples - sum over words seen n >= 2 times of (n - 1). Each cell's sums are
 // added up in ascending n, beyond_ first, whether one cell or all are summarised.
-void subset_tally::summaries(std::vector<count_summary>& out) const {
+void subset_tally::summaries(std::vector<count_summary>& out) {
+    settle();
     out.assign(beyond_.begin(), beyond_.end());
     repeats_.resize(cells_);
     for (std::size_t cell = 0; cell < cells_; ++cell) repeats_[cell] = out[cell].samples - out[cell].distinct;
@@ -301,7 +381,8 @@ void subset_tally::summaries(std::vector<count_summary>& out) const {
     }
 }
 
-count_summary subset_tally::summary(std::size_t split, int subset) const {
+count_summary subset_tally::summary(std::size_t split, int subset) {
+    settle();
     if (subset == subset_index(0, 0)) split = 0;
     const std::size_t cell = split * nested_subsets + static_cast<std::size_t>(subset);
     count_summary s = beyond_[cell];

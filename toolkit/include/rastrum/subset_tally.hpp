@@ -47,10 +47,10 @@ public:
     void add_histogram(const sparse_words::entry* first, const sparse_words::entry* last, count per_trial);
 
     /// Summary of the summed histograms of subset `subset_index(level, block)` of split `split`.
-    count_summary summary(std::size_t split, int subset) const;
+    count_summary summary(std::size_t split, int subset);
     /// The same for every subset of every split at once (out[split * 15 + subset]), in one pass over
     /// the table: the same numbers, bit for bit, as summary() of each.
-    void summaries(std::vector<count_summary>& out) const;
+    void summaries(std::vector<count_summary>& out);
 
 private:
     /// Every run of equal codes as a word; with `by_trial`, listed_ counts the entries of each trial.
@@ -91,6 +91,12 @@ private:
     template <typename Visit>
     void for_each_row(Visit&& visit) const;
     static constexpr std::ptrdiff_t few_occurrences = 3;
+    /// Histograms of one word per trial that list at most this many words count their all-zero word
+    /// by its differences from "once in every trial" (add_zero_word_few); more are counted per eighth.
+    static constexpr std::size_t few_listed = 2;
+    void add_zero_word_few(const sparse_words::entry* first, const sparse_words::entry* last);
+    /// Adds to the table what add_zero_word_few left pending. Before any summary.
+    void settle();
 
     const std::vector<nested_split>* splits_ = nullptr;
     std::size_t splits_count_ = 0;
@@ -115,6 +121,8 @@ private:
     std::vector<count> marked_rows_;
     mutable std::vector<count> sorted_rows_;
     mutable std::vector<count> repeats_;    // per cell, while summarising
+    count zero_full_ = 0;                   // histograms whose all-zero word is pending in every cell
+    std::vector<std::uint32_t> zero_less_one_;  // per trial: of those, the ones listing only that trial
     std::vector<count_summary> beyond_;     // per cell, words seen more than dense_limit times
     count per_trial_ = 0;                   // words per trial, over the closed histograms
     std::vector<std::uint32_t> eighths_;    // lanes_
