@@ -24,7 +24,7 @@ choice "W2W3" runs it from here, so that a run without --workload times W1, W2 a
 (about 3 hours on this machine kind, nearly all of it the baseline).
 
 Usage: tests/bench/workloads.py [--rastrum build/rastrum] [--workload W1|W2W3|small|S1000|...] [--baseline-units K]
-       [--skip-baseline] [--reference-rastrum OTHER_BUILD] [--keep DIR [--reuse]] [--json OUT]
+       [--skip-baseline] [--reference-rastrum OTHER_BUILD [--reference-units K]] [--keep DIR [--reuse]] [--json OUT]
 
 With --reference-rastrum, each workload also runs on another build (1 thread), timed beside this
 one, and its records are compared with this build's by same_results.py (equal numbers, fewer word
@@ -189,18 +189,7 @@ def run_workload(name, w, opt, folder):
         print(f"tool, {threads} thread{'s' if threads > 1 else ''}: wall {t['wall_s']:.1f} s, CPU "
               f"{t['cpu_s']:.1f} s, peak {t['peak_mib']:.0f} MiB", flush=True)
     if opt.reference_rastrum:
-        # Another build (e.g. the main branch before a change) on the same command, 1 thread, and its
-        # records against this build's: equal, but for word lengths this build did not need.
-        out = os.path.join(folder, f"{name}-reference-1.json")
-        command = [opt.reference_rastrum] + fill(w["tool"], out=out, **values) + ["--threads", "1"]
-        r = result["reference"] = timed(command, folder, f"{name}-reference-1", out, opt.reuse)
-        r["ratio_cpu_reference_over_tool_1_thread"] = r["cpu_s"] / result["tool"][1]["cpu_s"]
-        check = subprocess.run([PYTHON, os.path.join(HERE, "same_results.py"), out, tool_json[1]],
-                               capture_output=True, text=True)
-        r["same_numbers"] = check.returncode == 0
-        print(f"reference build, 1 thread: wall {r['wall_s']:.1f} s, CPU {r['cpu_s']:.1f} s, peak {r['peak_mib']:.0f} "
-              f"MiB; CPU reference / tool on 1 thread: {r['ratio_cpu_reference_over_tool_1_thread']:.1f}x\n  "
-              + check.stdout.strip().replace("\n", "\n  "), flush=True)
+        result["reference"] = run_reference(name, w, opt, folder, values, result["tool"][1], tool_json[1])
     with open(tool_json[1]) as f:
         tool_result = json.load(f)
     with open(tool_json[2]) as f:
@@ -246,6 +235,43 @@ def run_workload(name, w, opt, folder):
     return result
 
 
+def spread_units(recording, k, rastrum):
+    """k unit ids spread evenly over the recording's units (as the baseline's --spread-units)."""
+    survey = subprocess.run([rastrum, "survey", recording, "--json", "-"], check=True, capture_output=True, text=True)
+    names = [u["unit"] for u in json.loads(survey.stdout)["units"]]
+    n = len(names)
+    return [names[(n - 1) // 2]] if k == 1 else [names[round(i * (n - 1) / (k - 1))] for i in range(min(k, n))]
+
+
+def run_reference(name, w, opt, folder, values, tool, tool_json):
+    """Another build (e.g. the main branch before a change) on the same command, 1 thread, timed beside
+    this build's, and its records against this build's: equal, but for word lengths this build did not
+    need. With --reference-units K (for workloads whose reference run takes hours) both builds run on K
+    units spread over the recording, and the ratio is between those two runs."""
+    command = fill(w["tool"], out="{out}", **values) + ["--threads", "1"]
+    label = f"{name}-reference-1"
+    if opt.reference_units and w["units"] > opt.reference_units:
+        recording = command[1]
+        units = spread_units(recording, opt.reference_units, opt.rastrum)
+        command += [a for u in units for a in ("--unit", u)]
+        label = f"{name}-reference-{len(units)}-units"
+        out = os.path.join(folder, f"{name}-tool-{len(units)}-units.json")
+        tool = timed([opt.rastrum] + [a.replace("{out}", out) for a in command], folder,
+                     f"{name}-tool-{len(units)}-units", out, opt.reuse)
+        tool_json = out
+        print(f"tool on {len(units)} units, 1 thread: CPU {tool['cpu_s']:.1f} s, peak {tool['peak_mib']:.0f} MiB", flush=True)
+    out = os.path.join(folder, label + ".json")
+    r = timed([opt.reference_rastrum] + [a.replace("{out}", out) for a in command], folder, label, out, opt.reuse)
+    r["tool_on_the_same_units"] = tool
+    r["ratio_cpu_reference_over_tool_1_thread"] = r["cpu_s"] / tool["cpu_s"]
+    check = subprocess.run([PYTHON, os.path.join(HERE, "same_results.py"), out, tool_json], capture_output=True, text=True)
+    r["same_numbers"] = check.returncode == 0
+    print(f"reference build ({label}), 1 thread: wall {r['wall_s']:.1f} s, CPU {r['cpu_s']:.1f} s, peak "
+          f"{r['peak_mib']:.0f} MiB; CPU reference / tool on 1 thread: {r['ratio_cpu_reference_over_tool_1_thread']:.1f}x\n  "
+          + check.stdout.strip().replace("\n", "\n  "), flush=True)
+    return r
+
+
 def run_stiminfo_workloads(opt):
     """W2 and W3, tool and baseline side by side, by time_stiminfo.sh; its table is passed on."""
     print("== W2, W3: stimulus information of 200 units and of 50 pairs and 20 triplets (time_stiminfo.sh)", flush=True)
@@ -270,6 +296,9 @@ def main():
     p.add_argument("--reference-rastrum",
                    help="another build of rastrum (e.g. main before a change): timed on 1 thread beside this one, and "
                         "its records compared with this build's (same_results.py)")
+    p.add_argument("--reference-units", type=int, default=0,
+                   help="K: the reference build, and this one beside it, run on K units spread over workloads with more "
+                        "(for workloads whose reference run would take hours)")
     p.add_argument("--reuse", action="store_true",
                    help="with --keep: do not run again a step whose output and GNU time report are in the folder "
                         "(resumes an interrupted run, or takes the baseline's runs made beside it)")
