@@ -16,7 +16,7 @@ typedef std::uint8_t byte_vector __attribute__((vector_size(16)));
 
 /// Counts of the 15 nested subsets from the counts of the 8 eighths, in subset_index order.
 template <typename T>
-void compose(const T* eighths, T* subsets) {
+[[gnu::always_inline]] inline void compose(const T* eighths, T* subsets) {
     T* out = subsets;
     for (int b = 0; b < 8; ++b) out[subset_index(3, b)] = eighths[b];
     for (int q = 0; q < 4; ++q) out[subset_index(2, q)] = eighths[2 * q] + eighths[2 * q + 1];
@@ -188,20 +188,28 @@ void subset_tally::tally_rows(const std::uint32_t* eighths) {
 void subset_tally::tally_few(const entry* first, const entry* last) {
     const auto r = static_cast<std::size_t>(last - first);
     bump(0, r);  // the whole set, kept in split 0
-    int block[few_occurrences];
-    for (std::size_t s = 0; s < splits_count_; ++s) {
-        const std::uint8_t* block_of = (*splits_)[s].block_of.data();
-        const std::size_t cells = s * nested_subsets;
-        if (r == 2) {
-            // Two occurrences share the subsets of every level above the highest bit where their blocks differ.
-            const int apart = block_of[first[0].trial] ^ block_of[first[1].trial];
-            const int b = block_of[first[0].trial];
-            if (apart < 4) bump(cells + static_cast<std::size_t>(subset_index(1, b >> 2)), 2);
-            if (apart < 2) bump(cells + static_cast<std::size_t>(subset_index(2, b >> 1)), 2);
-            if (apart == 0) bump(cells + static_cast<std::size_t>(subset_index(3, b)), 2);
-            continue;
+    // Each trial's block in every split from one row of lane_index_ (split * 8 + block).
+    const std::size_t splits = splits_count_;
+    const std::uint32_t* lanes[few_occurrences];
+    for (std::size_t j = 0; j < r; ++j) lanes[j] = lane_index_.data() + first[j].trial * splits;
+    if (r == 2) {
+        // Two occurrences share the subsets of every level above the highest bit where their blocks
+        // differ. n = 2 is below every limit: straight into the table.
+        std::uint32_t* const frequency = frequency_.data() + 2 * cells_;
+        for (std::size_t s = 0; s < splits; ++s) {
+            const std::size_t cells = s * nested_subsets;
+            const int b = static_cast<int>(lanes[0][s] & 7u);
+            const int apart = b ^ static_cast<int>(lanes[1][s] & 7u);
+            if (apart < 4) ++frequency[cells + static_cast<std::size_t>(subset_index(1, b >> 2))];
+            if (apart < 2) ++frequency[cells + static_cast<std::size_t>(subset_index(2, b >> 1))];
+            if (apart == 0) ++frequency[cells + static_cast<std::size_t>(subset_index(3, b))];
         }
-        for (std::size_t j = 0; j < r; ++j) block[j] = block_of[first[j].trial];
+        return;
+    }
+    int block[few_occurrences];
+    for (std::size_t s = 0; s < splits; ++s) {
+        const std::size_t cells = s * nested_subsets;
+        for (std::size_t j = 0; j < r; ++j) block[j] = static_cast<int>(lanes[j][s] & 7u);
         for (int level = 1; level < nested_levels; ++level) {
             const int shift = nested_levels - 1 - level;
             // Each subset holding two or more of the occurrences, with how many it holds.
@@ -261,9 +269,9 @@ void subset_tally::add_zero_word_few(const entry* first, const entry* last) {
     };
     fewer(0, listed);  // the whole set, kept in split 0
     int block[few_listed];
-    for (std::size_t s = 0; s < splits_count_; ++s) {
-        const std::uint8_t* block_of = (*splits_)[s].block_of.data();
-        for (std::size_t j = 0; j < listed; ++j) block[j] = block_of[first[j].trial];
+    const std::size_t splits = splits_count_;
+    for (std::size_t s = 0; s < splits; ++s) {
+        for (std::size_t j = 0; j < listed; ++j) block[j] = static_cast<int>(lane_index_[first[j].trial * splits + s] & 7u);
         for (int level = 1; level < nested_levels; ++level) {
             const int shift = nested_levels - 1 - level;
             for (std::size_t j = 0; j < listed; ++j) {
