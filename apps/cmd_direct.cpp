@@ -28,6 +28,10 @@ int run_direct(int argc, char** argv) {
         ("fit-letters", po::value(&fit_text),
          "word lengths A-B for the extrapolation to infinite word length; by default the upper half of the "
          "well-sampled lengths (see --bias-tolerance)")
+        ("every-length", po::bool_switch(&request.settings.every_length),
+         "compute every word length of --letters; by default lengths stop at the first one after which no longer "
+         "length can enter the extrapolation to infinite word length (the rates are the same; the curves in 1/L "
+         "then show the longer, undersampled lengths too)")
         ("bias-tolerance", number_value(&request.settings.bias_tolerance),
          "sampling rule: a word length is well sampled when the extrapolations from plug-in and from jackknife "
          "estimates agree on its information within this fraction of it (or of twice its standard error, if larger)")

@@ -89,7 +89,21 @@ TEST(cli, direct_writes_stable_json_and_tidy_csv) {
                            "warnings"}) {
         EXPECT_TRUE(rec.contains(key)) << key;
     }
-    ASSERT_EQ(rec["by_letters"].size(), 6u);
+    // Lengths are computed up to the first one after which none can enter the fit, and the record says so.
+    std::size_t rows = 0;
+    for (const json& each: d["records"]) {
+        const json& by = each["by_letters"];
+        ASSERT_FALSE(by.empty());
+        EXPECT_EQ(each["letters_computed"], json::array({by.front()["letters"], by.back()["letters"]}));
+        const std::string until = each["letters_computed_until"];
+        if (by.size() < 6) {
+            EXPECT_EQ(until, "sampling rule");
+            EXPECT_FALSE(by.back()["well_sampled"].get<bool>());
+        } else {
+            EXPECT_EQ(until, "--letters");
+        }
+        rows += by.size();
+    }
     for (const char* key: {"letters", "samples", "distinct_words", "total_entropy_bits", "noise_entropy_bits",
                            "info_bits", "total_entropy_plugin_bits", "noise_entropy_plugin_bits"}) {
         EXPECT_TRUE(rec["by_letters"][0].contains(key)) << key;
@@ -97,13 +111,38 @@ TEST(cli, direct_writes_stable_json_and_tidy_csv) {
     EXPECT_FALSE(rec["warnings"].empty()) << "40 trials must carry a caution";
     // Tidy CSV: a provenance comment, a header and one row per (unit, bin width, word length).
     const std::string csv = read_file(folder + "/d.csv");
-    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), 2 + 2 * 2 * 6);
+    EXPECT_EQ(std::count(csv.begin(), csv.end(), '\n'), static_cast<std::ptrdiff_t>(2 + rows));
     ASSERT_EQ(csv.rfind("# {", 0), 0u);
     const json origin = json::parse(csv.substr(2, csv.find('\n') - 2));
     EXPECT_EQ(origin["input"]["sha256"], d["input"]["sha256"]);
     EXPECT_EQ(origin["parameters"], d["parameters"]);
     EXPECT_TRUE(origin["run"].contains("started_utc"));
     EXPECT_NE(csv.find("\nunit,stimulus,bin_ms,"), std::string::npos);
+}
+
+// --every-length computes all of --letters, and changes no rate (the fit range ends before).
+TEST(cli, direct_every_length_adds_rows_and_changes_no_rate) {
+    const std::string folder = fresh_folder("cli-every-length");
+    const std::string common = "direct " + small_recording() + " --bin-ms 2,4 --letters 1-6 --threads 2 --quiet --json ";
+    ASSERT_EQ(run_rastrum(common + folder + "/part.json").exit_code, 0);
+    ASSERT_EQ(run_rastrum(common + folder + "/every.json --every-length").exit_code, 0);
+    const json part = json::parse(read_file(folder + "/part.json"));
+    const json every = json::parse(read_file(folder + "/every.json"));
+    EXPECT_EQ(every["parameters"]["every_length"], true);
+    EXPECT_EQ(part["parameters"]["every_length"], false);
+    ASSERT_EQ(part["records"].size(), every["records"].size());
+    std::size_t fewer = 0;
+    for (std::size_t i = 0; i < part["records"].size(); ++i) {
+        const json& a = part["records"][i];
+        const json& b = every["records"][i];
+        EXPECT_EQ(b["by_letters"].size(), 6u);
+        EXPECT_EQ(b["letters_computed_until"], "--letters");
+        fewer += a["by_letters"].size() < b["by_letters"].size();
+        for (const char* key: {"fit_letters", "info_rate_bits_per_s", "info_rate_ci95_bits_per_s", "warnings"}) {
+            EXPECT_EQ(a[key], b[key]) << key;
+        }
+    }
+    EXPECT_GT(fewer, 0u) << "the small recording's records should stop before 6 letters";
 }
 
 TEST(cli, same_results_for_one_and_two_threads) {

@@ -311,7 +311,7 @@ TEST(cli_figures, the_readme_figure_is_what_the_documented_commands_make) {
               read_file(std::string(RASTRUM_SOURCE_DIR) + "/notes/figures/demo-summary.svg"))
         << "remake notes/figures/demo-summary.svg with the commands in notes/figures.md";
     // The sweep the README shows, by the commands it gives.
-    ASSERT_EQ(run_rastrum("direct " + demo + " --unit u3 --bin-ms 1,2,4,8 --letters 1-10 --quiet --json " + folder +
+    ASSERT_EQ(run_rastrum("direct " + demo + " --unit u3 --bin-ms 1,2,4,8 --letters 1-10 --every-length --quiet --json " + folder +
                           "/sweep.json").exit_code, 0);
     ASSERT_EQ(run_rastrum(figures(folder + "/sweep.json --quiet --out " + folder + "/sweep")).exit_code, 0);
     for (const char* name: {"sweep-rates-vs-bin-width-u3.svg", "sweep-word-length-u3-2ms.svg"}) {

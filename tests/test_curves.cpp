@@ -173,7 +173,7 @@ TEST(curves, hdf5_results_file_holds_every_curve_with_units) {
     EXPECT_EQ(text(y, "units"), "bits/s");
     EXPECT_EQ(text(y, "quantity"), "information rate");
     EXPECT_FALSE(text(y, "description").empty());
-    const H5::DataSet coefficients = file.openDataSet("/direct/u1/entropy_vs_inverse_trials/bin_4ms/letters_3/noise/fit_coefficients");
+    const H5::DataSet coefficients = file.openDataSet("/direct/u1/entropy_vs_inverse_trials/bin_4ms/letters_1/noise/fit_coefficients");
     EXPECT_EQ(coefficients.getSpace().getSimpleExtentNpoints(), 3);
     const H5::DataSet json_text = file.openDataSet("/result_json");
     std::string whole;

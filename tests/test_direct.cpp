@@ -54,6 +54,7 @@ TEST(direct, independent_bins_recover_the_exact_information) {
         const auto synth = make_frozen_bins(independent_bins({10, 20, 30}, 1.5, seed));
         auto q = request_for(2.0, 10);
         q.settings.seed = seed;
+        q.settings.every_length = true;  // the per-length values below, past the fit range too
         const auto records = run_direct(synth.rec, q);
         ASSERT_EQ(records.size(), 3u);
         for (std::size_t u = 0; u < 3; ++u) {
@@ -229,11 +230,100 @@ TEST(direct, rotated_trials_give_a_null_and_a_p_value) {
     EXPECT_GE(not_beating_all, 2);  // each seed beats all 9 rotations with probability 1/10 under the null
 }
 
-TEST(direct, rotating_trials_keeps_each_trials_letters) {
-    letter_matrix m;
-    m.trials = 2;
-    m.bins = 4;
-    m.letters = {1, 5, 2, 6, 3, 7, 4, 8};  // bin-major: trial 0 holds 1 2 3 4, trial 1 holds 5 6 7 8
-    const auto r = rotate_trials(m, {1, 3});
-    EXPECT_EQ(r.letters, (std::vector<letter>{2, 8, 3, 5, 4, 6, 1, 7}));
+// Stopping at the first word length after which no longer one can enter the fit changes no number:
+// by the sampling rule's definition (notes/methods.md, section 4.3) the fit lies within the run of
+// well-sampled lengths from the shortest on, so the lengths after the first one that fails cannot
+// move the fit range, and every rate, interval and caution comes from the fit range and the lengths
+// in it. Compared here against computing every length, on recordings whose records stop at 1 to 4
+// letters (at 1 and 8 ms, with 150 and 60 trials), with a user's fit range and a first length above 1.
+TEST(direct, stopping_at_the_last_length_that_can_enter_the_fit_changes_no_number) {
+    auto spec = one_poisson_unit(150, 3.0, 20, 1.0, 12);
+    spec.rates_hz = {6, 20, 45};
+    const auto poisson = make_poisson(spec);
+    spec.session.trials = 60;
+    const auto few_trials = make_poisson(spec);
+    direct_request q;
+    q.bin_ms = {1.0, 8.0};
+    q.settings.letters_max = 12;
+    q.threads = 2;
+    std::size_t stopped = 0, rows_saved = 0;
+    auto check = [&](const recording& rec, const direct_request& request, const char* what) {
+        direct_request every = request;
+        every.settings.every_length = true;
+        const auto all = run_direct(rec, every);
+        const auto part = run_direct(rec, request);
+        ASSERT_EQ(all.size(), part.size());
+        for (std::size_t i = 0; i < all.size(); ++i) {
+            const direct_estimate& a = all[i].estimate;
+            const direct_estimate& b = part[i].estimate;
+            SCOPED_TRACE(std::string(what) + ", " + all[i].unit + " at " + std::to_string(all[i].bin_ms) + " ms");
+            ASSERT_FALSE(b.by_letters.empty());
+            ASSERT_LE(b.by_letters.size(), a.by_letters.size());
+            for (std::size_t j = 0; j < b.by_letters.size(); ++j) {
+                EXPECT_EQ(b.by_letters[j].letters, a.by_letters[j].letters);
+                EXPECT_EQ(b.by_letters[j].info_bits, a.by_letters[j].info_bits);
+                EXPECT_EQ(b.by_letters[j].info_se_bits, a.by_letters[j].info_se_bits);
+                EXPECT_EQ(b.by_letters[j].well_sampled, a.by_letters[j].well_sampled);
+                EXPECT_EQ(b.by_letters[j].data_size.total_bits, a.by_letters[j].data_size.total_bits);
+            }
+            EXPECT_EQ(b.fit_letters, a.fit_letters);
+            EXPECT_EQ(b.total_rate, a.total_rate);
+            EXPECT_EQ(b.noise_rate, a.noise_rate);
+            EXPECT_EQ(b.info_rate, a.info_rate);
+            EXPECT_EQ(b.info_rate_se, a.info_rate_se);
+            EXPECT_EQ(b.info_rate_ci95, a.info_rate_ci95);
+            EXPECT_EQ(b.half_info_rates, a.half_info_rates);
+            EXPECT_EQ(part[i].warnings, all[i].warnings);
+            EXPECT_EQ(a.letters_stop, length_stop::letters_max);
+            const letters_estimate& last = b.by_letters.back();
+            if (b.by_letters.size() == a.by_letters.size()) {
+                EXPECT_EQ(b.letters_stop, length_stop::letters_max);
+                continue;
+            }
+            ++stopped;
+            rows_saved += a.by_letters.size() - b.by_letters.size();
+            if (request.settings.fit_letters) {
+                EXPECT_EQ(b.letters_stop, length_stop::fit_letters);
+                EXPECT_EQ(last.letters, request.settings.fit_letters->second);
+            } else {
+                EXPECT_EQ(b.letters_stop, length_stop::sampling_rule);
+                EXPECT_FALSE(last.well_sampled) << "stopped after a length that passed the rule";
+            }
+        }
+    };
+    check(poisson.rec, q, "sampling rule");
+    check(few_trials.rec, q, "60 trials");
+    q.settings.bias_tolerance = 0.3;  // longer well-sampled runs
+    check(poisson.rec, q, "tolerance 0.3");
+    q.settings.letters_min = 2;
+    check(poisson.rec, q, "from 2 letters");
+    q.settings.letters_min = 1;
+    q.settings.fit_letters = std::make_pair(2, 5);
+    check(poisson.rec, q, "--fit-letters 2-5");
+    EXPECT_GE(stopped, 20u) << "the comparison must cover records that stopped early";
+    EXPECT_GE(rows_saved, 150u);
 }
+
+// The rotated estimates use the real estimate's fit range, and compute only its lengths: a rate rests
+// on the lengths of its fit range alone (notes/methods.md, sections 4.2-4.4), so the null is the same
+// as when every length is computed in each rotation.
+TEST(direct, rotations_computing_only_the_fit_range_give_the_same_null) {
+    const auto synth = make_poisson(one_poisson_unit(100, 3.0, 25, 1.0, 13));
+    std::vector<std::size_t> trials(synth.rec.trial_start.size());
+    for (std::size_t k = 0; k < trials.size(); ++k) trials[k] = k;
+    const letter_matrix letters =
+        bin_spikes(align_to_trials(*synth.rec.spikes(0), synth.rec, trials), 0.004, whole_bins(3.0, 0.004), false);
+    direct_settings every;
+    every.letters_max = 8;
+    every.fit_letters = std::make_pair(2, 4);
+    direct_settings fit_only = every;
+    fit_only.letters_min = 2;
+    fit_only.letters_max = 4;
+    direct_workspace workspace;
+    const auto a = rotation_null_distribution(sparse_of(letters), 0.004, every, 7, 10.0, 21, workspace);
+    const auto b = rotation_null_distribution(sparse_of(letters), 0.004, fit_only, 7, 10.0, 21, workspace);
+    EXPECT_EQ(a.info_rates, b.info_rates);
+    EXPECT_EQ(a.p_value, b.p_value);
+    EXPECT_EQ(a.info_rates.size(), 7u);
+}
+

@@ -65,11 +65,20 @@ TEST_P(subset_tally_splits, equals_direct_counts_in_every_subset) {
         }
         h.words = kept;
     }
+    const auto other_splits = make_nested_splits(trials, GetParam(), 2);
     for (const count dense_limit: {count{5}, count{4096}}) {
         subset_tally tally(splits, trials, dense_limit);
-        for (int repeat = 0; repeat < 2; ++repeat) {  // clear() must forget everything
+        for (int repeat = 0; repeat < 3; ++repeat) {  // clear() and reset() must forget everything
+            if (repeat == 1) {
+                tally.reset(other_splits, trials, dense_limit);
+                for (const auto& h: histograms) tally.add_histogram(h.words.data(), h.words.data() + h.words.size(), h.per_trial);
+                tally.reset(splits, trials, dense_limit);
+            }
             tally.clear();
             for (const auto& h: histograms) tally.add_histogram(h.words.data(), h.words.data() + h.words.size(), h.per_trial);
+            std::vector<count_summary> all;
+            tally.summaries(all);
+            ASSERT_EQ(all.size(), splits.size() * nested_subsets);
             for (std::size_t s = 0; s < splits.size(); ++s) {
                 for (int level = 0; level < nested_levels; ++level) {
                     for (int b = 0; b < (1 << level); ++b) {
@@ -92,6 +101,11 @@ TEST_P(subset_tally_splits, equals_direct_counts_in_every_subset) {
                             expected.merge(one);
                         }
                         const auto got = tally.summary(s, subset_index(level, b));
+                        const auto& at_once = all[s * nested_subsets + static_cast<std::size_t>(subset_index(level, b))];
+                        EXPECT_EQ(at_once.samples, got.samples);
+                        EXPECT_EQ(at_once.distinct, got.distinct);
+                        EXPECT_EQ(at_once.sum_n_log2_n, got.sum_n_log2_n);  // the same sums in the same order
+                        EXPECT_EQ(at_once.sum_leave_one_out, got.sum_leave_one_out);
                         EXPECT_EQ(got.samples, expected.samples);
                         EXPECT_EQ(got.distinct, expected.distinct);
                         EXPECT_NEAR(got.sum_n_log2_n, expected.sum_n_log2_n, 1e-9 * expected.sum_n_log2_n);
@@ -104,6 +118,65 @@ TEST_P(subset_tally_splits, equals_direct_counts_in_every_subset) {
 }
 
 INSTANTIATE_TEST_SUITE_P(split_counts, subset_tally_splits, ::testing::Values(4u, 8u));
+
+// Histograms of one word per trial (the noise entropy's, one per start position) that list 0 to 6
+// words of distinct trials, summed: against a map per subset (common practice), so that the all-zero
+// word counted by its differences from "in every trial" (few listed words) and per eighth (more)
+// agree with counting it directly.
+TEST(subset_tally, one_word_per_trial_with_few_listed_words) {
+    random_stream rng(7);
+    const std::size_t trials = 45;
+    const auto splits = make_nested_splits(trials, 8, 3);
+    std::vector<std::vector<sparse_words::entry>> histograms;
+    for (int h = 0; h < 400; ++h) {
+        const std::size_t listed = static_cast<std::size_t>(rng.below(7));
+        std::vector<std::size_t> order(trials);
+        for (std::size_t k = 0; k < trials; ++k) order[k] = k;
+        shuffle(order, rng);
+        std::vector<sparse_words::entry> words;
+        for (std::size_t j = 0; j < listed; ++j) {
+            words.push_back({1 + rng.below(2), static_cast<std::uint32_t>(order[j]), 0});
+        }
+        std::sort(words.begin(), words.end(), [](const auto& a, const auto& b) { return a.code < b.code; });
+        histograms.push_back(words);
+    }
+    subset_tally tally(splits, trials, trials);
+    for (int repeat = 0; repeat < 2; ++repeat) {  // clear() must forget the pending all-zero words too
+        tally.clear();
+        if (repeat == 1) {
+            for (const auto& h: histograms) tally.add_histogram(h.data(), h.data() + h.size(), 1);
+            tally.clear();
+        }
+        for (const auto& h: histograms) tally.add_histogram(h.data(), h.data() + h.size(), 1);
+        std::vector<count_summary> all;
+        tally.summaries(all);
+        for (std::size_t s = 0; s < splits.size(); ++s) {
+            for (int level = 0; level < nested_levels; ++level) {
+                for (int b = 0; b < (1 << level); ++b) {
+                    count_summary expected;
+                    for (const auto& h: histograms) {
+                        std::map<word_code, count> direct;
+                        for (std::size_t k = 0; k < trials; ++k) {
+                            if ((splits[s].block_of[k] >> (nested_levels - 1 - level)) == b) ++direct[0];
+                        }
+                        for (const auto& w: h) {
+                            if ((splits[s].block_of[w.trial] >> (nested_levels - 1 - level)) == b) {
+                                ++direct[w.code];
+                                --direct[0];
+                            }
+                        }
+                        for (const auto& [code, n]: direct) expected.add(n);
+                    }
+                    const auto& got = all[s * nested_subsets + static_cast<std::size_t>(subset_index(level, b))];
+                    EXPECT_EQ(got.samples, expected.samples);
+                    EXPECT_EQ(got.distinct, expected.distinct);
+                    EXPECT_NEAR(got.sum_n_log2_n, expected.sum_n_log2_n, 1e-9 * expected.sum_n_log2_n);
+                    EXPECT_NEAR(got.sum_leave_one_out, expected.sum_leave_one_out, 1e-9 * expected.sum_leave_one_out);
+                }
+            }
+        }
+    }
+}
 
 // Counts of codes against a map of each code to its count (common practice), in the map's order, for
 // small spaces (the dense table), large and extreme ones (sorting), one code and none.

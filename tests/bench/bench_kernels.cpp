@@ -7,6 +7,7 @@
 #include <rastrum/random.hpp>
 #include <rastrum/synthetic.hpp>
 #include <rastrum/trial_partition.hpp>
+#include <rastrum/sparse_letters.hpp>
 #include <rastrum/sparse_words.hpp>
 #include <rastrum/subset_tally.hpp>
 
@@ -43,12 +44,13 @@ BENCHMARK(bin_spikes_kernel)->Arg(1)->Arg(4);
 // 100 trials x 10 s at 20 Hz in 0.5 ms bins (W1's finest). Items: every word of every length, listed
 // or not, so the figure compares with building all words densely.
 void grow_sparse_words(benchmark::State& state) {
-    const auto letters = bin_spikes(poisson_trials(), 0.0005, 20000, false);
+    const auto letters = sparse_of(bin_spikes(poisson_trials(), 0.0005, 20000, false));
     const word_code alphabet = std::max<word_code>(2, word_code{letters.largest} + 1);
     std::int64_t words_per_run = 0;
     for (std::size_t L = 1; L <= 16; ++L) words_per_run += static_cast<std::int64_t>((20000 - L + 1) * 100);
+    sparse_words words;
     for (auto _: state) {
-        sparse_words words(letters, alphabet, 16);
+        words.start(letters, alphabet, 16);
         for (int L = 2; L <= 16; ++L) words.grow();
         benchmark::DoNotOptimize(words.pooled().data());
     }
@@ -126,15 +128,20 @@ void estimators(benchmark::State& state) {
 }
 BENCHMARK(estimators);
 
-// One unit at one bin width: 100 trials x 10 s at 20 Hz, letters 1-16 (W1's), at 0.5 and 16 ms bins.
-void direct_one_unit(benchmark::State& state) {
+// One unit at one bin width: 100 trials x 10 s at 20 Hz, letters 1-16 (W1's), at 0.5 and 16 ms bins,
+// with the buffers of one thread kept between estimates as `rastrum direct` keeps them; as the tool
+// runs (up to the first length after which none can enter the fit) and with every length.
+void direct_one_unit(benchmark::State& state, bool every_length) {
     const double dt = static_cast<double>(state.range(0)) / 2000;
-    const auto letters = bin_spikes(poisson_trials(), dt, whole_bins(10, dt), false);
+    const auto letters = sparse_of(bin_spikes(poisson_trials(), dt, whole_bins(10, dt), false));
     direct_settings settings;
     settings.letters_max = 16;
-    for (auto _: state) benchmark::DoNotOptimize(estimate_direct(letters, dt, settings));
+    settings.every_length = every_length;
+    direct_workspace workspace;
+    for (auto _: state) benchmark::DoNotOptimize(estimate_direct(letters, dt, settings, workspace));
 }
-BENCHMARK(direct_one_unit)->Arg(1)->Arg(32)->Unit(benchmark::kMillisecond);
+BENCHMARK_CAPTURE(direct_one_unit, as_needed, false)->Arg(1)->Arg(32)->Unit(benchmark::kMillisecond);
+BENCHMARK_CAPTURE(direct_one_unit, every_length, true)->Arg(1)->Arg(32)->Unit(benchmark::kMillisecond);
 
 }  // namespace
 

@@ -23,8 +23,13 @@ whose baseline subsets (pairs and triplets beside single units) do not fit the t
 choice "W2W3" runs it from here, so that a run without --workload times W1, W2 and W3 in one go
 (about 3 hours on this machine kind, nearly all of it the baseline).
 
-Usage: tests/bench/workloads.py [--rastrum build/rastrum] [--workload W1|W2W3|small ...] [--baseline-units K]
-       [--skip-baseline] [--keep DIR [--reuse]] [--json OUT]
+Usage: tests/bench/workloads.py [--rastrum build/rastrum] [--workload W1|W2W3|small|S1000|...] [--baseline-units K]
+       [--skip-baseline] [--reference-rastrum OTHER_BUILD [--reference-units K]] [--keep DIR [--reuse]] [--json OUT]
+
+With --reference-rastrum, each workload also runs on another build (1 thread), timed beside this
+one, and its records are compared with this build's by same_results.py (equal numbers, fewer word
+lengths allowed where no longer one could enter the fit). W1-null19, S1000 and S1000-null19 are the
+workloads of issue 15 (W1 with 19 rotated-trial nulls; the 1,000-unit session without and with them).
 
 Adding a workload (W2, W3, ...) is one entry in WORKLOADS below:
     "W2": workload(
@@ -52,6 +57,7 @@ import tempfile
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 PYTHON = "/usr/bin/python3"  # Debian's, with numpy and h5py
+MADE = set()  # recordings made in this run
 
 
 def workload(describe, make, tool, units, baseline=None, compare=None, words=None):
@@ -81,6 +87,16 @@ def direct_words_counted(result_json):
     return total
 
 
+# The 1,000-unit session of issue 15: a high-density probe's worth of units, 200 trials x 10 s of
+# inhomogeneous Poisson firing with mean rates evenly spaced from 2 to 18 Hz (10 Hz on average),
+# analysed with W1's sweep. No NumPy baseline (it would take about 20 hours).
+S1000_RATES = ",".join("%.6g" % (2 + 16 * i / 999) for i in range(1000))
+S1000_SYNTH = ["synth", "poisson", "--out", "{dir}/s1000.h5", "--seed", "63", "--trials", "200", "--duration-s", "10",
+               "--rate-hz", S1000_RATES, "--modulation", "1", "--correlation-ms", "15", "--resolution-ms", "0.5"]
+W1_SYNTH = ["synth", "poisson", "--out", "{dir}/w1.h5", "--seed", "61", "--trials", "100", "--duration-s", "10",
+            "--rate-hz", W1_RATES, "--modulation", "1", "--correlation-ms", "15", "--resolution-ms", "0.5"]
+SWEEP = ["--bin-ms", W1_BINS, "--letters", "%d-%d" % W1_LETTERS]
+
 # The small case (tests/bench/baseline/check_direct_baseline.py compares the baseline with the tool on it):
 # 3 units x 42 trials x 2 s at 5, 20 and 40 Hz; 42 rather than 40 trials so that the blocks of the
 # nested splits (5 and 6 trials) and quarters (10 and 11) differ in size and the fits weigh them.
@@ -101,15 +117,28 @@ WORKLOADS = {
     "W1": workload(
         describe="direct sweep: 100 units x 100 trials x 10 s, inhomogeneous Poisson at 5-40 Hz; bins "
                  + W1_BINS + " ms, letters %d-%d, default extrapolation subsets (8 splits)" % W1_LETTERS,
-        make=[["synth", "poisson", "--out", "{dir}/w1.h5", "--seed", "61", "--trials", "100", "--duration-s", "10",
-               "--rate-hz", W1_RATES, "--modulation", "1", "--correlation-ms", "15", "--resolution-ms", "0.5"]],
-        tool=["direct", "{dir}/w1.h5", "--bin-ms", W1_BINS, "--letters", "%d-%d" % W1_LETTERS, "--quiet",
-              "--json", "{out}"],
+        make=[W1_SYNTH],
+        tool=["direct", "{dir}/w1.h5"] + SWEEP + ["--quiet", "--json", "{out}"],
         units=100,
         baseline=["{python}", "{here}/baseline/direct_baseline.py", "{dir}/w1.h5", "--bin-ms", W1_BINS,
                   "--letters", "%d-%d" % W1_LETTERS, "--spread-units", "{units}", "--json", "{out}"],
         compare=["{python}", "{here}/baseline/compare_direct.py", "{tool_json}", "{baseline_json}", "--subset"],
         words=direct_words_counted),
+    "W1-null19": workload(
+        describe="W1 with 19 rotated-trial null estimates per unit and bin width",
+        make=[W1_SYNTH],
+        tool=["direct", "{dir}/w1.h5"] + SWEEP + ["--null-rotations", "19", "--quiet", "--json", "{out}"],
+        units=100),
+    "S1000": workload(
+        describe="1,000 units x 200 trials x 10 s, inhomogeneous Poisson at 2-18 Hz (mean 10 Hz); W1's sweep",
+        make=[S1000_SYNTH],
+        tool=["direct", "{dir}/s1000.h5"] + SWEEP + ["--quiet", "--json", "{out}"],
+        units=1000),
+    "S1000-null19": workload(
+        describe="the 1,000-unit session with 19 rotated-trial null estimates per unit and bin width",
+        make=[S1000_SYNTH],
+        tool=["direct", "{dir}/s1000.h5"] + SWEEP + ["--null-rotations", "19", "--quiet", "--json", "{out}"],
+        units=1000),
 }
 
 
@@ -145,8 +174,10 @@ def run_workload(name, w, opt, folder):
     values = {"dir": folder, "python": PYTHON, "here": HERE}
     for command in w["make"]:
         command = fill(command, **values)
-        if not (opt.reuse and os.path.exists(command[command.index("--out") + 1])):
+        made = command[command.index("--out") + 1]
+        if made not in MADE and not (opt.reuse and os.path.exists(made)):
             subprocess.run([opt.rastrum] + command, check=True, stderr=subprocess.DEVNULL)
+        MADE.add(made)  # workloads that share a recording make it once
     result = {"workload": name, "describe": w["describe"], "units": w["units"], "tool": {}, "baseline": {}}
     tool_json = {}
     for threads in (1, 2):
@@ -157,6 +188,8 @@ def run_workload(name, w, opt, folder):
         t = result["tool"][threads]
         print(f"tool, {threads} thread{'s' if threads > 1 else ''}: wall {t['wall_s']:.1f} s, CPU "
               f"{t['cpu_s']:.1f} s, peak {t['peak_mib']:.0f} MiB", flush=True)
+    if opt.reference_rastrum:
+        result["reference"] = run_reference(name, w, opt, folder, values, result["tool"][1], tool_json[1])
     with open(tool_json[1]) as f:
         tool_result = json.load(f)
     with open(tool_json[2]) as f:
@@ -202,6 +235,43 @@ def run_workload(name, w, opt, folder):
     return result
 
 
+def spread_units(recording, k, rastrum):
+    """k unit ids spread evenly over the recording's units (as the baseline's --spread-units)."""
+    survey = subprocess.run([rastrum, "survey", recording, "--json", "-"], check=True, capture_output=True, text=True)
+    names = [u["unit"] for u in json.loads(survey.stdout)["units"]]
+    n = len(names)
+    return [names[(n - 1) // 2]] if k == 1 else [names[round(i * (n - 1) / (k - 1))] for i in range(min(k, n))]
+
+
+def run_reference(name, w, opt, folder, values, tool, tool_json):
+    """Another build (e.g. the main branch before a change) on the same command, 1 thread, timed beside
+    this build's, and its records against this build's: equal, but for word lengths this build did not
+    need. With --reference-units K (for workloads whose reference run takes hours) both builds run on K
+    units spread over the recording, and the ratio is between those two runs."""
+    command = fill(w["tool"], out="{out}", **values) + ["--threads", "1"]
+    label = f"{name}-reference-1"
+    if opt.reference_units and w["units"] > opt.reference_units:
+        recording = command[1]
+        units = spread_units(recording, opt.reference_units, opt.rastrum)
+        command += [a for u in units for a in ("--unit", u)]
+        label = f"{name}-reference-{len(units)}-units"
+        out = os.path.join(folder, f"{name}-tool-{len(units)}-units.json")
+        tool = timed([opt.rastrum] + [a.replace("{out}", out) for a in command], folder,
+                     f"{name}-tool-{len(units)}-units", out, opt.reuse)
+        tool_json = out
+        print(f"tool on {len(units)} units, 1 thread: CPU {tool['cpu_s']:.1f} s, peak {tool['peak_mib']:.0f} MiB", flush=True)
+    out = os.path.join(folder, label + ".json")
+    r = timed([opt.reference_rastrum] + [a.replace("{out}", out) for a in command], folder, label, out, opt.reuse)
+    r["tool_on_the_same_units"] = tool
+    r["ratio_cpu_reference_over_tool_1_thread"] = r["cpu_s"] / tool["cpu_s"]
+    check = subprocess.run([PYTHON, os.path.join(HERE, "same_results.py"), out, tool_json], capture_output=True, text=True)
+    r["same_numbers"] = check.returncode == 0
+    print(f"reference build ({label}), 1 thread: wall {r['wall_s']:.1f} s, CPU {r['cpu_s']:.1f} s, peak "
+          f"{r['peak_mib']:.0f} MiB; CPU reference / tool on 1 thread: {r['ratio_cpu_reference_over_tool_1_thread']:.1f}x\n  "
+          + check.stdout.strip().replace("\n", "\n  "), flush=True)
+    return r
+
+
 def run_stiminfo_workloads(opt):
     """W2 and W3, tool and baseline side by side, by time_stiminfo.sh; its table is passed on."""
     print("== W2, W3: stimulus information of 200 units and of 50 pairs and 20 triplets (time_stiminfo.sh)", flush=True)
@@ -223,6 +293,12 @@ def main():
                    help="workloads to run (repeatable; default W1 and W2W3)")
     p.add_argument("--baseline-units", type=int, default=1, help="K: the baseline runs on the first K and 2K units")
     p.add_argument("--skip-baseline", action="store_true")
+    p.add_argument("--reference-rastrum",
+                   help="another build of rastrum (e.g. main before a change): timed on 1 thread beside this one, and "
+                        "its records compared with this build's (same_results.py)")
+    p.add_argument("--reference-units", type=int, default=0,
+                   help="K: the reference build, and this one beside it, run on K units spread over workloads with more "
+                        "(for workloads whose reference run would take hours)")
     p.add_argument("--reuse", action="store_true",
                    help="with --keep: do not run again a step whose output and GNU time report are in the folder "
                         "(resumes an interrupted run, or takes the baseline's runs made beside it)")
@@ -232,6 +308,8 @@ def main():
     if not os.path.exists("/usr/bin/time"):
         raise SystemExit("needs GNU time: apt-get install time")
     opt.rastrum = os.path.abspath(opt.rastrum)
+    if opt.reference_rastrum:
+        opt.reference_rastrum = os.path.abspath(opt.reference_rastrum)
     folder = opt.keep or tempfile.mkdtemp(prefix="rastrum-workloads-")
     os.makedirs(folder, exist_ok=True)
     try:
@@ -244,6 +322,7 @@ def main():
         with open(opt.json, "w") as f:
             json.dump(results, f, indent=1)
     bad = [r["workload"] for r in results for b in r["baseline"].values() if not b.get("numbers_agree", True)]
+    bad += [r["workload"] + " (reference build)" for r in results if not r.get("reference", {}).get("same_numbers", True)]
     if bad:
         print("the baseline's numbers differ from the tool's in " + ", ".join(bad))
         return 1

@@ -88,8 +88,8 @@ def subset_estimators():
             run(["synth", "frozen-bins", "--overwrite", "--out", path, "--duration-s", "8", "--bin-ms", str(bin_ms), "--seed", "1"]
                 + synth.split())
             truth = json.load(open(f"{folder}/r.answers.json"))["units"][0]["by_letters"]["info_bits"]
-            r = json.loads(run(["direct", path, "--bin-ms", str(bin_ms), "--letters", "1-8", "--json", "-",
-                                "--quiet"]))["records"][0]
+            r = json.loads(run(["direct", path, "--bin-ms", str(bin_ms), "--letters", "1-8", "--every-length",
+                                "--json", "-", "--quiet"]))["records"][0]
             for name in ["plug-in", "miller-madow", "jackknife"]:
                 errors = [e["info_bits_by_subset_estimator"][name] / truth[e["letters"] - 1] - 1
                           for e in r["by_letters"]]

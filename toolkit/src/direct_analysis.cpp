@@ -11,6 +11,7 @@
 #include <cmath>
 #include <cstring>
 #include <limits>
+#include <tuple>
 
 namespace rastrum {
 
@@ -75,7 +76,15 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
     aligned_units aligned(rec, trials, uses);
 
     std::vector<direct_record> records(units.size() * n_bins);
-    parallel_for(records.size(), request.threads, [&](std::size_t task) {
+    // Each worker keeps its letters and the estimates' buffers from task to task.
+    struct kept_per_worker {
+        sparse_letters letters;
+        direct_workspace workspace;
+    };
+    std::vector<kept_per_worker> kept(std::min<std::size_t>(effective_threads(request.threads), records.size()));
+    parallel_for_workers(records.size(), request.threads, [&](std::size_t task, unsigned worker) {
+        sparse_letters& letters = kept[worker].letters;
+        direct_workspace& workspace = kept[worker].workspace;
         const std::size_t u = units[task / n_bins];
         const double bin_ms = request.bin_ms[task % n_bins];
         const seconds bin_width = bin_ms / 1000.0;
@@ -87,11 +96,10 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
         r.trial_duration = duration;
         const std::size_t bins = whole_bins(duration, bin_width);
         const seconds analysed = static_cast<double>(bins) * bin_width;
-        letter_matrix letters;
         count spikes = 0;
         {  // the spike times are needed only until they are letters
             const aligned_units::hold unit(aligned, u);
-            letters = bin_spikes(unit.spikes(), bin_width, bins, request.binary);
+            bin_spikes_sparse(unit.spikes(), bin_width, bins, request.binary, letters);
             spikes = spikes_before(unit.spikes(), analysed);
         }
         r.mean_rate_hz = static_cast<double>(spikes) / (static_cast<double>(trials.size()) * analysed);
@@ -100,7 +108,7 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
         // Each task's randomness depends only on its own unit and bin width.
         settings.seed = derive_seed(request.settings.seed, {text_hash(r.unit), bits_of(bin_ms)});
         try {
-            r.estimate = estimate_direct(letters, bin_width, settings);
+            r.estimate = estimate_direct(letters, bin_width, settings, workspace);
         } catch (const insufficient_data& e) {
             throw insufficient_data(rec.source + ", unit " + r.unit + " at " + format_number(bin_ms) + " ms: " + e.what());
         }
@@ -109,10 +117,14 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
         r.coding_efficiency = r.estimate.total_rate > 0 ? r.estimate.info_rate / r.estimate.total_rate : nan;
         r.warnings = r.estimate.warnings;
         if (request.null_rotations > 0) {
+            // The rotated estimates use the real one's fit range, and only those lengths are computed:
+            // a rate depends on no other (words still grow from one letter up).
             direct_settings same_lengths = settings;
             same_lengths.fit_letters = r.estimate.fit_letters;
+            std::tie(same_lengths.letters_min, same_lengths.letters_max) = r.estimate.fit_letters;
+            same_lengths.every_length = false;
             r.null = rotation_null_distribution(letters, bin_width, same_lengths, request.null_rotations,
-                                                r.estimate.info_rate, settings.seed);
+                                                r.estimate.info_rate, settings.seed, workspace);
             if (r.null.p_value > 0.05) {
                 r.warnings.push_back("not distinguishable from trials rotated out of register with the stimulus (p = " +
                                      format_number(r.null.p_value) + ")");

@@ -2,9 +2,10 @@
 #include <rastrum/errors.hpp>
 #include <rastrum/format.hpp>
 #include <rastrum/extrapolation.hpp>
+#include <rastrum/fit_lengths.hpp>
 #include <rastrum/trial_partition.hpp>
-#include <rastrum/sparse_words.hpp>
-#include <rastrum/subset_tally.hpp>
+
+#include "direct_workspace.hpp"
 
 #include <algorithm>
 #include <array>
@@ -48,74 +49,6 @@ void check_direct_settings(const direct_settings& s) {
 }
 
 namespace {
-
-/// Entropies of every subset of every split at one word length, by each subset estimator.
-struct subset_entropies {
-    std::array<std::vector<double>, subset_estimator_count> total;  // [estimator][split * 15 + subset]
-    std::array<std::vector<double>, subset_estimator_count> noise;  // averaged over start positions
-    count samples = 0;
-    count distinct = 0;
-};
-
-using entropy_estimator = double (*)(const mean_summary&);
-const std::array<entropy_estimator, subset_estimator_count> estimators{
-    static_cast<entropy_estimator>(plugin_entropy), static_cast<entropy_estimator>(miller_madow_entropy),
-    static_cast<entropy_estimator>(jackknife_entropy)};
-
-class length_measurer {
-public:
-    length_measurer(const std::vector<nested_split>& splits, std::size_t trials):
-        cells_(splits.size() * nested_subsets), noise_(splits, trials, trials),
-        total_(splits, trials, pooled_dense_limit) {}
-
-    subset_entropies measure(const sparse_words& words) {
-        subset_entropies e;
-        measure_noise(words, e);
-        measure_total(words, e);
-        return e;
-    }
-
-private:
-    // Counts up to this are tabulated for the pooled words; larger ones are rare and summed directly.
-    static constexpr count pooled_dense_limit = 4096;
-
-    void estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out, const subset_tally& tally,
-                        double histograms) const {
-        for (auto& v: out) v.assign(cells_, 0.0);
-        for (std::size_t c = 0; c < cells_; ++c) {
-            const count_summary merged = tally.summary(c / nested_subsets, static_cast<int>(c % nested_subsets));
-            const count samples_each = static_cast<count>(static_cast<double>(merged.samples) / histograms + 0.5);
-            const mean_summary mean = mean_of_histograms(merged, histograms, samples_each);
-            for (std::size_t m = 0; m < static_cast<std::size_t>(subset_estimator_count); ++m) out[m][c] = estimators[m](mean);
-        }
-    }
-
-    // The word at one start position, across the trials of each subset; averaged over positions by
-    // averaging the histograms' sums (see mean_summary), which the tally adds up exactly.
-    void measure_noise(const sparse_words& words, subset_entropies& e) {
-        const std::size_t positions = words.positions();
-        noise_.clear();
-        for (std::size_t t = 0; t < positions; ++t) {
-            noise_.add_histogram(words.begin_at(t), words.end_at(t), 1);
-        }
-        estimate_cells(e.noise, noise_, static_cast<double>(positions));
-    }
-
-    // Words pooled over every start position and every trial of each subset.
-    void measure_total(const sparse_words& words, subset_entropies& e) {
-        const auto& pooled = words.pooled();
-        total_.clear();
-        total_.add_histogram(pooled.data(), pooled.data() + pooled.size(), words.positions());
-        estimate_cells(e.total, total_, 1.0);
-        const count_summary all = total_.summary(0, 0);
-        e.samples = all.samples;
-        e.distinct = all.distinct;
-    }
-
-    std::size_t cells_;
-    subset_tally noise_;
-    subset_tally total_;
-};
 
 /// Extrapolation to infinite data from all trials, the halves and the quarters of every split;
 /// each level weighs as much as the others in the fit.
@@ -223,7 +156,18 @@ std::vector<double> slice(const std::vector<double>& v, int from, int to) {
 
 }  // namespace
 
+direct_workspace::direct_workspace(): parts_(std::make_unique<parts>()) {}
+direct_workspace::~direct_workspace() = default;
+direct_workspace::direct_workspace(direct_workspace&&) noexcept = default;
+direct_workspace& direct_workspace::operator=(direct_workspace&&) noexcept = default;
+
 direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width, const direct_settings& settings) {
+    direct_workspace workspace;
+    return estimate_direct(sparse_of(letters), bin_width, settings, workspace);
+}
+
+direct_estimate estimate_direct(const sparse_letters& letters, seconds bin_width, const direct_settings& settings,
+                                direct_workspace& workspace) {
     check_direct_settings(settings);
     const std::size_t n_trials = letters.trials;
     if (n_trials < static_cast<std::size_t>(nested_blocks)) {
@@ -237,7 +181,9 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
                                 std::to_string(settings.letters_max + 1) + " (narrower bins or fewer letters)");
     }
 
-    const auto splits = make_nested_splits(n_trials, settings.splits, settings.seed);
+    direct_workspace::parts& kept = workspace.inside();
+    kept.splits = make_nested_splits(n_trials, settings.splits, settings.seed);
+    const auto& splits = kept.splits;
     std::vector<std::vector<std::size_t>> sizes;
     for (const auto& s: splits) sizes.push_back(subset_sizes(s));
     const std::size_t n_halves = 2 * splits.size();
@@ -256,12 +202,15 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
     std::vector<double> total_all, noise_all, total_other, noise_other;
     std::vector<std::vector<double>> total_half(n_halves), noise_half(n_halves);
 
-    sparse_words words(letters, std::max<word_code>(2, word_code{letters.largest} + 1), settings.letters_max);
-    length_measurer measurer(splits, n_trials);
+    sparse_words& words = kept.words;
+    words.start(letters, std::max<word_code>(2, word_code{letters.largest} + 1), settings.letters_max);
+    length_measurer& measurer = kept.measurer;
+    measurer.reset(splits, n_trials);
+    const fit_length_rule rule(settings);
     for (int L = 1; L <= settings.letters_max; ++L) {
         if (L > 1) words.grow();
         if (L < settings.letters_min) continue;
-        const subset_entropies e = measurer.measure(words);
+        const subset_entropies& e = measurer.measure(words);
 
         letters_estimate le;
         le.letters = L;
@@ -306,39 +255,17 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
         noise_all.push_back(le.noise_bits);
         total_other.push_back(total_inf[other]);
         noise_other.push_back(noise_inf[other]);
+        // No longer length can change the fit range, so none is computed (fit_lengths.hpp).
+        if (L < settings.letters_max && !settings.every_length && !rule.longer_length_may_enter(out.by_letters)) {
+            out.letters_stop = rule.stop_reason();
+            break;
+        }
     }
 
-    // Word lengths of the 1/L fit: the upper half of the well-sampled lengths (notes/methods.md).
-    if (settings.fit_letters) {
-        out.fit_letters = *settings.fit_letters;
-        out.fit_letters_from_user = true;
-    } else {
-        int longest_good = 0;
-        for (const auto& le: out.by_letters) {
-            if (!le.well_sampled) break;
-            longest_good = le.letters;
-        }
-        if (longest_good == 0) {
-            longest_good = settings.letters_min;
-            const auto& first = out.by_letters.front();
-            const std::string length = std::to_string(longest_good) + "-letter words";
-            if (std::abs(first.info_bits) < 2 * first.info_se_bits) {
-                out.warnings.push_back(
-                    "the information is indistinguishable from 0 and no word length passes the sampling rule: even for " +
-                    length + " the plug-in and jackknife bias corrections differ by " +
-                    format_fixed(first.estimator_spread_bits / std::max(first.info_se_bits, 1e-300), 1) +
-                    " standard errors; the rate rests on " + length + " alone");
-            } else {
-                out.warnings.push_back(
-                    "undersampled: no word length passes the sampling rule; even for " + length +
-                    " the plug-in and jackknife bias corrections differ by " +
-                    format_fixed(100 * first.estimator_spread_bits / std::abs(first.info_bits), 1) + "% of the information (tolerance " +
-                    format_fixed(100 * settings.bias_tolerance, 1) + "%), so the bias left in the rate is uncertain by about that "
-                    "much; the rate rests on " + length + " alone (more trials would help)");
-            }
-        }
-        out.fit_letters = {std::max(settings.letters_min, (longest_good + 1) / 2), longest_good};
-    }
+    fit_choice choice = rule.choose(out.by_letters);
+    out.fit_letters = choice.letters;
+    out.fit_letters_from_user = choice.from_user;
+    out.warnings = std::move(choice.warnings);
     const int from = out.fit_letters.first - settings.letters_min;
     const int to = out.fit_letters.second - settings.letters_min;
 
@@ -367,21 +294,6 @@ direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width,
                                  u.word_length * u.word_length + u.bias_correction * u.bias_correction);
     out.info_rate_ci95 = {out.info_rate - 1.96 * out.info_rate_se, out.info_rate + 1.96 * out.info_rate_se};
 
-    const bool rule_failed = !out.fit_letters_from_user && !out.by_letters.front().well_sampled;
-    if (out.fit_letters.first == out.fit_letters.second && !rule_failed) {
-        out.warnings.push_back("the rate comes from " + std::to_string(out.fit_letters.first) +
-                               "-letter words alone, without extrapolation to infinite word length: correlations "
-                               "between bins further apart are not counted");
-    }
-    if (out.fit_letters_from_user) {
-        for (const auto& le: out.by_letters) {
-            if (le.letters >= out.fit_letters.first && le.letters <= out.fit_letters.second && !le.well_sampled) {
-                out.warnings.push_back("--fit-letters includes undersampled " + std::to_string(le.letters) +
-                                       "-letter words: the extrapolation may report information that is not there");
-                break;
-            }
-        }
-    }
     // Few spikes per bin position across the trials: each position's noise entropy rests on one
     // spike or none and is underestimated, beyond what the corrections and the interval see
     // (notes/methods.md, "Sparse bins"; the threshold comes from the experiment there).

@@ -39,35 +39,38 @@ void counting_sort(entry* first, entry* last, word_code buckets, Key key, std::v
 
 }  // namespace
 
-sparse_words::sparse_words(const letter_matrix& letters, word_code alphabet, int max_letters):
-    letters_of_(letters), alphabet_(alphabet), max_letters_(max_letters), trials_(letters.trials),
-    positions_(letters.bins) {
+void sparse_words::start(const sparse_letters& letters, word_code alphabet, int max_letters) {
+    letters_of_ = &letters;
+    alphabet_ = alphabet;
+    max_letters_ = max_letters;
+    letters_ = 1;
+    trials_ = letters.trials;
+    positions_ = letters.bins;
     check_codable_words(alphabet_, letters.largest, max_letters_);
     if (static_cast<double>(letters.bins) * static_cast<double>(letters.trials) >=
         static_cast<double>(std::numeric_limits<std::uint32_t>::max())) {
         throw insufficient_data("2^32 words or more per word length: use a wider bin or fewer trials");
     }
-    // The non-zero letters by bin, each knowing the previous spike bin of its trial.
-    std::vector<std::uint32_t> last_spike(trials_, no_previous);
-    bin_start_.assign(letters.bins + 1, 0);
+    // Each non-zero letter knows the previous spike bin of its trial.
+    last_spike_.assign(trials_, no_previous);
+    previous_.resize(letters.nonzero.size());
     for (std::size_t b = 0; b < letters.bins; ++b) {
-        bin_start_[b] = spike_bins_.size();
-        const letter* row = letters.bin_row(b);
-        for (std::size_t k = 0; k < trials_; ++k) {
-            if (row[k] == 0) continue;
-            spike_bins_.push_back({static_cast<std::uint32_t>(k), row[k], last_spike[k]});
-            last_spike[k] = static_cast<std::uint32_t>(b);
+        for (std::uint32_t i = letters.bin_start[b]; i < letters.bin_start[b + 1]; ++i) {
+            const std::uint32_t k = letters.nonzero[i].trial;
+            previous_[i] = last_spike_[k];
+            last_spike_[k] = static_cast<std::uint32_t>(b);
         }
     }
-    bin_start_[letters.bins] = spike_bins_.size();
+    occupied_.clear();  // made when first needed: many estimates use 1-letter words only
 
     // One letter: the words holding a spike are the non-zero letters, sorted by value.
     position_start_.assign(positions_ + 1, 0);
-    by_position_.reserve(spike_bins_.size());
+    by_position_.clear();
+    by_position_.reserve(letters.nonzero.size());
     for (std::size_t t = 0; t < positions_; ++t) {
         position_start_[t] = by_position_.size();
-        for (std::size_t i = bin_start_[t]; i < bin_start_[t + 1]; ++i) {
-            by_position_.push_back({spike_bins_[i].value, spike_bins_[i].trial, static_cast<std::uint32_t>(t)});
+        for (std::uint32_t i = letters.bin_start[t]; i < letters.bin_start[t + 1]; ++i) {
+            by_position_.push_back({letters.nonzero[i].value, letters.nonzero[i].trial, static_cast<std::uint32_t>(t)});
         }
         insertion_sort_by_code(by_position_.data() + position_start_[t], by_position_.data() + by_position_.size());
     }
@@ -75,6 +78,18 @@ sparse_words::sparse_words(const letter_matrix& letters, word_code alphabet, int
     pooled_ = by_position_;
     counting_sort(pooled_.data(), pooled_.data() + pooled_.size(), alphabet_,
                   [](const entry& e) { return e.code; }, scratch_, bucket_);
+}
+
+void sparse_words::mark_occupied() {
+    const sparse_letters& letters = *letters_of_;
+    row_words_ = (trials_ + 63) / 64;
+    occupied_.assign(letters.bins * row_words_, 0);
+    for (std::size_t b = 0; b < letters.bins; ++b) {
+        for (std::uint32_t i = letters.bin_start[b]; i < letters.bin_start[b + 1]; ++i) {
+            const std::uint32_t k = letters.nonzero[i].trial;
+            occupied_[b * row_words_ + k / 64] |= std::uint64_t{1} << (k % 64);
+        }
+    }
 }
 
 void sparse_words::sort_runs_by_last_letter(entry* first, entry* last) {
@@ -96,6 +111,8 @@ void sparse_words::sort_runs_by_last_letter(entry* first, entry* last) {
 
 void sparse_words::grow() {
     if (letters_ >= max_letters_ || positions_ <= 1) throw internal_error("sparse_words::grow past its limit");
+    if (occupied_.empty()) mark_occupied();
+    const sparse_letters& letters = *letters_of_;
     const std::size_t shift = static_cast<std::size_t>(letters_);  // position t gains the letter at bin t + L
     const std::size_t positions = positions_ - 1;
     const word_code a = alphabet_;
@@ -108,18 +125,17 @@ void sparse_words::grow() {
     for (std::size_t t = 0; t < positions; ++t) {
         next_start_[t] = next_by_position_.size();
         const std::size_t b = t + shift;
-        for (std::size_t i = bin_start_[b]; i < bin_start_[b + 1]; ++i) {
-            const spike_bin& s = spike_bins_[i];
-            if (starts_fresh(s, t)) next_by_position_.push_back({s.value, s.trial, static_cast<std::uint32_t>(t)});
+        for (std::uint32_t i = letters.bin_start[b]; i < letters.bin_start[b + 1]; ++i) {
+            const auto& s = letters.nonzero[i];
+            if (starts_fresh(previous_[i], t)) next_by_position_.push_back({s.value, s.trial, static_cast<std::uint32_t>(t)});
         }
         entry* fresh_first = next_by_position_.data() + next_start_[t];
         insertion_sort_by_code(fresh_first, next_by_position_.data() + next_by_position_.size());
         fresh_.insert(fresh_.end(), fresh_first, next_by_position_.data() + next_by_position_.size());
 
         const std::size_t old_first = next_by_position_.size();
-        const letter* row = letters_of_.bin_row(b);
         for (const entry* e = begin_at(t); e < end_at(t); ++e) {
-            next_by_position_.push_back({e->code * a + row[e->trial], e->trial, e->position});
+            next_by_position_.push_back({e->code * a + letter_at(b, e->trial), e->trial, e->position});
         }
         sort_runs_by_last_letter(next_by_position_.data() + old_first, next_by_position_.data() + next_by_position_.size());
     }
@@ -134,7 +150,7 @@ void sparse_words::grow() {
     const std::size_t old_first = next_pooled_.size();
     for (const entry& e: pooled_) {
         if (e.position >= positions) continue;
-        next_pooled_.push_back({e.code * a + letters_of_.at(e.position + shift, e.trial), e.trial, e.position});
+        next_pooled_.push_back({e.code * a + letter_at(e.position + shift, e.trial), e.trial, e.position});
     }
     sort_runs_by_last_letter(next_pooled_.data() + old_first, next_pooled_.data() + next_pooled_.size());
 

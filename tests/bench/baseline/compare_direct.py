@@ -4,7 +4,9 @@ options: every value the baseline writes (per record, per word length, and the c
 against 1/N and of entropy rates against 1/L) must be in the tool's result with the same value.
 
 Whole numbers, flags and texts (word counts, the sampling rule's verdicts, the fit range) must be
-equal. Numbers agree when |a - b| <= rtol max(|a|, |b|, S) (rtol 1e-9 by default), S the scale of
+equal. The tool computes word lengths only up to the first one after which no longer length can enter
+the fit; the baseline's rows and curves of longer lengths are left out, once the tool's reason for
+stopping is found to hold in the baseline's rows (computed_part). Numbers agree when |a - b| <= rtol max(|a|, |b|, S) (rtol 1e-9 by default), S the scale of
 the entropies the value is computed from:
 - per word length (bits per word): the total entropy per word at that length; the information is a
   difference of such entropies and the jackknife computes N H - (N - 1) <H_(-j)> with N the words in
@@ -139,6 +141,48 @@ def curve_scale(c, records):
     return of
 
 
+def computed_part(base_record, tool_record, problems):
+    """The baseline's record cut to the word lengths the tool computed. The tool stops at the first
+    length after which no longer one can enter the fit and says why (`letters_computed_until`); the
+    reason must hold in the baseline's own rows: "sampling rule", its last length is not well sampled
+    there; "--fit-letters", that length ends the fit range; "--letters", nothing was left out."""
+    rows = base_record["by_letters"]
+    computed = tool_record.get("letters_computed")
+    if computed is None:  # a result from before lengths could stop: every length was computed
+        return base_record
+    where = f"record {base_record['unit']} at {base_record['bin_ms']} ms"
+    keep = [le for le in rows if le["letters"] <= computed[1]]
+    why = tool_record.get("letters_computed_until")
+    if why == "--letters":
+        holds = len(keep) == len(rows)
+    elif why == "sampling rule":
+        holds = bool(keep) and not keep[-1]["well_sampled"] and base_record["fit_letters_from"] == "sampling rule"
+    elif why == "--fit-letters":
+        holds = computed[1] == base_record["fit_letters"][1]
+    else:
+        holds = False
+    if not holds:
+        problems.append(f"{where}: the tool stopped at {computed[1]} letters for '{why}', which the baseline's "
+                        "rows do not bear out")
+    cut = dict(base_record)
+    cut["by_letters"] = keep
+    return cut
+
+
+def computed_curve(curve, letters):
+    """A baseline curve cut to the word lengths the tool computed (None: a length it did not compute)."""
+    if curve["curve"] == "entropy_vs_inverse_trials":
+        return curve if curve["letters"] in letters else None
+    if curve["curve"] == "entropy_rate_vs_inverse_letters":
+        n = sum(1 for x in curve["x"]["values"] if round(1 / x) in letters)
+        cut = json.loads(json.dumps(curve))
+        for key in ("x", "y"):
+            cut[key]["values"] = cut[key]["values"][:n]
+        cut["in_fit"] = cut["in_fit"][:n]
+        return cut
+    return curve
+
+
 def main():
     p = argparse.ArgumentParser()
     p.add_argument("tool")
@@ -161,15 +205,20 @@ def main():
     tool_records = keyed([r for r in tool["records"] if not opt.subset or r["unit"] in units], ("unit", "bin_ms"))
     if set(tool_records) != set(base_records):
         c.problems.append(f"records differ: tool {sorted(tool_records)}, baseline {sorted(base_records)}")
+    letters = {}
     for key, record in base_records.items():
         if key in tool_records:
+            record = computed_part(record, tool_records[key], c.problems)
+            base_records[key] = record
+            letters[key] = {le["letters"] for le in record["by_letters"]}
             c.compare(f"record {key[0]} at {key[1]} ms: record", record, tool_records[key], record_scale(record))
 
     fields = ("curve", "unit", "bin_ms", "letters", "series")
     wanted = {b["curve"] for b in base["curves"]}
     tool_curves = keyed([t for t in tool["curves"] if t["curve"] in wanted and (not opt.subset or t["unit"] in units)],
                         fields)
-    base_curves = keyed(base["curves"], fields)
+    base_curves = [computed_curve(b, letters.get((b["unit"], b["bin_ms"]), set())) for b in base["curves"]]
+    base_curves = keyed([b for b in base_curves if b is not None], fields)
     if set(tool_curves) != set(base_curves):
         c.problems.append(f"curves differ: {len(tool_curves)} in the tool's result, {len(base_curves)} in the baseline's")
     for key, curve in base_curves.items():

@@ -20,6 +20,8 @@ What it loops over in Python and what it leaves to NumPy, so that the comparison
   of equal neighbours (the vectorised form of one np.unique per start position). Words of L letters
   are built from those of L - 1 in one array expression.
 - Nothing is reused between subsets or word lengths beyond the word codes themselves.
+- Every word length of --letters is computed, as the tool did before issue 15; with --stop-early the
+  lengths stop where the tool's do (notes/methods.md 4.3), for a like-for-like timing.
 
 The random nested splits are those of toolkit/src/trial_partition.cpp: xoshiro256** (Blackman &
 Vigna 2021, ACM TOMS 47:36) seeded through SplitMix64 (Steele, Lea & Flood 2014), FNV-1a for the
@@ -28,7 +30,7 @@ Python integers masked to 64 bits.
 
 Usage: direct_baseline.py RECORDING.h5 --bin-ms 2,4 --letters 1-6 [--unit ID]... [--first-units K | --spread-units K]
        [--splits 8] [--seed 1] [--subset-estimator jackknife] [--bias-tolerance 0.03]
-       [--fit-letters A-B] [--binary] --json OUT
+       [--fit-letters A-B] [--binary] [--stop-early] --json OUT
 Needs Debian's python3 with python3-numpy and python3-h5py.
 """
 import argparse
@@ -309,6 +311,9 @@ def estimate(letters, bin_width, opt, seed):
         noise_all.append(noise_bits)
         total_other.append(extrapolated["total"][other][0])
         noise_other.append(extrapolated["noise"][other][0])
+        # The fit lies in the run of well-sampled lengths from the shortest on (or in --fit-letters).
+        if opt.stop_early and (L >= opt.fit_letters[1] if opt.fit_letters else not well):
+            break
 
     # The fit range: the upper half of the well-sampled lengths (notes/methods.md 4.3).
     if opt.fit_letters:
@@ -397,6 +402,9 @@ def main():
     p.add_argument("--bias-tolerance", type=float, default=0.03)
     p.add_argument("--fit-letters", type=int_range)
     p.add_argument("--binary", action="store_true")
+    p.add_argument("--stop-early", action="store_true",
+                   help="stop growing words at the first length after which no longer one can enter the fit (the "
+                        "first length the sampling rule rejects, or the end of --fit-letters), as the tool does")
     p.add_argument("--json", required=True)
     opt = p.parse_args()
     opt.letters_min, opt.letters_max = opt.letters

@@ -7,11 +7,13 @@
 /// The formulas, the rule that picks the word lengths of the 1/L fit, and the evidence for that
 /// rule are in notes/methods.md.
 #include <rastrum/binning.hpp>
+#include <rastrum/sparse_letters.hpp>
 #include <rastrum/extrapolation.hpp>
 #include <rastrum/types.hpp>
 
 #include <array>
 #include <cstdint>
+#include <memory>
 #include <optional>
 #include <string>
 #include <utility>
@@ -32,6 +34,14 @@ subset_estimator parse_subset_estimator(const std::string& name);
 /// see (measured with homogeneous firing, notes/methods.md, "Sparse bins").
 inline constexpr double sparse_spikes_per_position = 0.5;
 
+/// Why the direct method computed no longer word length (fit_lengths.hpp): the longest length asked
+/// for was reached, the end of the user's fit range, or a length past which the sampling rule lets
+/// no longer one into the fit.
+enum class length_stop { letters_max = 0, fit_letters = 1, sampling_rule = 2 };
+
+/// "--letters", "--fit-letters" or "sampling rule": the JSON's `letters_computed_until`.
+const char* length_stop_name(length_stop why);
+
 struct direct_settings {
     int letters_min = 1;                            // word lengths analysed: letters_min..letters_max
     int letters_max = 10;
@@ -44,6 +54,9 @@ struct direct_settings {
     /// (see notes/methods.md).
     double bias_tolerance = 0.03;
     std::uint64_t seed = 1;
+    /// Compute every length up to letters_max, also those past the first one after which no length
+    /// can enter the fit (for the curves in 1/L; the rates are the same either way).
+    bool every_length = false;
 };
 
 /// The extrapolation to infinite data at one word length, as a figure shows it: the mean entropy by
@@ -89,7 +102,10 @@ struct rate_uncertainty {
 struct direct_estimate {
     seconds bin_width = 0;
     std::size_t trials = 0;
+    /// The lengths computed, from letters_min on: up to letters_max, or to the first length after which
+    /// no longer one could enter the fit (see letters_stop).
     std::vector<letters_estimate> by_letters;
+    length_stop letters_stop = length_stop::letters_max;
     std::pair<int, int> fit_letters{0, 0};
     bool fit_letters_from_user = false;
     double total_rate = 0;   // [bits/s] extrapolated to infinite data and word length
@@ -104,8 +120,28 @@ struct direct_estimate {
     std::vector<std::string> warnings;
 };
 
+/// Buffers one thread reuses from one estimate to the next (words, subset tallies, rotated letters),
+/// so that estimates over many units, bin widths and rotations allocate almost nothing. Not for use
+/// by two threads at once; the numbers never depend on what it held before.
+class direct_workspace {
+public:
+    direct_workspace();
+    ~direct_workspace();
+    direct_workspace(direct_workspace&&) noexcept;
+    direct_workspace& operator=(direct_workspace&&) noexcept;
+
+    struct parts;  // toolkit/src/direct_workspace.hpp
+    parts& inside() { return *parts_; }
+
+private:
+    std::unique_ptr<parts> parts_;
+};
+
 /// Needs at least 8 trials and at least `letters_max` bins (throws insufficient_data saying what
 /// is missing); throws usage_error for an impossible range or a fit range outside it.
+direct_estimate estimate_direct(const sparse_letters& letters, seconds bin_width, const direct_settings& settings,
+                                direct_workspace& workspace);
+/// The same from a letter matrix, with buffers of its own.
 direct_estimate estimate_direct(const letter_matrix& letters, seconds bin_width, const direct_settings& settings);
 
 /// Checks a settings object before any data are read. Throws usage_error naming the setting.

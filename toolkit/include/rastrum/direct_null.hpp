@@ -3,16 +3,13 @@
 /// which keeps every trial's spike statistics but breaks their locking to the stimulus, so the
 /// information of rotated data is zero up to bias. Repeating the whole estimate on rotated data
 /// measures the bias left by the extrapolations and gives a permutation p-value.
-#include <rastrum/binning.hpp>
+#include <rastrum/sparse_letters.hpp>
 #include <rastrum/direct_method.hpp>
 
 #include <cstdint>
 #include <vector>
 
 namespace rastrum {
-
-/// Letters of trial k moved by offsets[k] bins: new bin b holds old bin (b + offsets[k]) mod bins.
-letter_matrix rotate_trials(const letter_matrix& letters, const std::vector<std::size_t>& offsets);
 
 struct rotation_null {
     unsigned rotations = 0;
@@ -23,9 +20,12 @@ struct rotation_null {
 };
 
 /// Runs `rotations` rotated estimates with `settings` (normally with fit_letters fixed to the ones
-/// the real estimate used) and compares them with `observed` [bits/s]. Each rotation's offsets come
-/// from (seed, rotation), so the null is the same for any thread count.
-rotation_null rotation_null_distribution(const letter_matrix& letters, seconds bin_width, const direct_settings& settings,
-                                         unsigned rotations, double observed, std::uint64_t seed);
+/// the real estimate used, and only those lengths) and compares them with `observed` [bits/s]. Each
+/// rotation's offsets (trial k's letters move by offset k: new bin b holds old bin (b + offset) mod
+/// bins) and nested splits come from (seed, rotation), so the null is the same for any thread count.
+/// The rotations move the non-zero letters (trial_rotator), never a matrix of every bin.
+rotation_null rotation_null_distribution(const sparse_letters& letters, seconds bin_width, const direct_settings& settings,
+                                         unsigned rotations, double observed, std::uint64_t seed,
+                                         direct_workspace& workspace);
 
 }  // namespace rastrum

@@ -19,6 +19,11 @@ using progress_callback = std::function<void(std::size_t done, std::size_t total
 void parallel_for(std::size_t n, unsigned threads, const std::function<void(std::size_t)>& task,
                   const progress_callback& progress);
 
+/// The same, telling each task which of the workers runs it (0 .. workers - 1, one task at a time per
+/// worker), so that tasks can reuse buffers kept per worker.
+void parallel_for_workers(std::size_t n, unsigned threads, const std::function<void(std::size_t, unsigned)>& task,
+                          const progress_callback& progress);
+
 /// The number of threads `parallel_for` uses for a request of `threads`.
 unsigned effective_threads(unsigned threads);
 

@@ -8,7 +8,7 @@
 /// a list sorted by the old codes stays sorted except within runs of equal old codes, which are
 /// re-sorted by the new letter; words that held no spike and gain one get codes below the alphabet,
 /// smaller than every old word's new code, and go first. Nothing is sorted from scratch.
-#include <rastrum/binning.hpp>
+#include <rastrum/sparse_letters.hpp>
 #include <rastrum/types.hpp>
 
 #include <cstddef>
@@ -26,10 +26,14 @@ public:
         std::uint32_t position;
     };
 
-    /// Starts at L = 1. `alphabet` must exceed every letter. Throws insufficient_data when words of
-    /// `max_letters` would not fit in a word_code (naming the longest that would) or when there are
-    /// 2^32 words or more.
-    sparse_words(const letter_matrix& letters, word_code alphabet, int max_letters);
+    sparse_words() = default;
+    sparse_words(const sparse_letters& letters, word_code alphabet, int max_letters) { start(letters, alphabet, max_letters); }
+
+    /// Starts at L = 1 over `letters`, which must stay alive and unchanged until the next start; the
+    /// buffers of earlier words are reused. `alphabet` must exceed every letter. Throws
+    /// insufficient_data when words of `max_letters` would not fit in a word_code (naming the longest
+    /// that would) or when there are 2^32 words or more.
+    void start(const sparse_letters& letters, word_code alphabet, int max_letters);
 
     /// Grows every word by one letter and drops the last start position, which no longer holds a
     /// whole word. Requires letters() < max_letters and positions() > 1.
@@ -48,31 +52,36 @@ public:
     const std::vector<entry>& pooled() const { return pooled_; }
 
 private:
-    /// A non-zero letter: its trial, value and the previous bin of that trial with a non-zero letter.
-    struct spike_bin {
-        std::uint32_t trial;
-        letter value;
-        std::uint32_t previous;  // no_previous when none
-    };
     static constexpr std::uint32_t no_previous = 0xffffffffu;
 
     /// Words of the current length that were all-zero one letter ago and end on a spike at bin b:
-    /// those starting at t = b - L + 1, when that trial has no spike in [t, b).
-    bool starts_fresh(const spike_bin& s, std::size_t t) const { return s.previous == no_previous || s.previous < t; }
+    /// those starting at t = b - L + 1, when that trial has no spike in [t, b). `previous` is the
+    /// trial's spike bin before b.
+    static bool starts_fresh(std::uint32_t previous, std::size_t t) { return previous == no_previous || previous < t; }
     void sort_runs_by_last_letter(entry* first, entry* last);
+    /// The letter of `trial` in bin b: from a bit per bin and trial (which bins hold spikes), made at the
+    /// first growth; the value from the bin's non-zero letters when letters exceed 1.
+    letter letter_at(std::size_t b, std::uint32_t trial) const {
+        const std::uint64_t bits = occupied_[b * row_words_ + trial / 64];
+        if (((bits >> (trial % 64)) & 1u) == 0) return 0;
+        return letters_of_->largest <= 1 ? 1 : letters_of_->at(b, trial);
+    }
+    void mark_occupied();
 
-    const letter_matrix& letters_of_;
-    word_code alphabet_;
-    int max_letters_;
+    const sparse_letters* letters_of_ = nullptr;
+    word_code alphabet_ = 2;
+    int max_letters_ = 1;
     int letters_ = 1;
-    std::size_t trials_;
-    std::size_t positions_;
-    std::vector<std::size_t> bin_start_;  // spike_bins_ of bin b: [bin_start_[b], bin_start_[b + 1])
-    std::vector<spike_bin> spike_bins_;
+    std::size_t trials_ = 0;
+    std::size_t positions_ = 0;
+    std::vector<std::uint32_t> previous_;   // per non-zero letter: the previous bin of its trial with one
+    std::size_t row_words_ = 0;             // 64-bit words per bin in occupied_
+    std::vector<std::uint64_t> occupied_;   // bin-major bits: trial k of bin b holds a spike
     std::vector<std::size_t> position_start_;
     std::vector<entry> by_position_;
     std::vector<entry> pooled_;
-    // Reused between lengths so that growing allocates nothing once the lists stop growing.
+    // Reused between lengths and starts so that growing allocates nothing once the lists stop growing.
+    std::vector<std::uint32_t> last_spike_;
     std::vector<std::size_t> next_start_;
     std::vector<entry> next_by_position_;
     std::vector<entry> next_pooled_;

@@ -28,7 +28,14 @@ namespace rastrum {
 class subset_tally {
 public:
     /// Counts up to `dense_limit` are tallied in a table; larger ones (rare) are summed directly.
-    subset_tally(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit);
+    /// `splits` must outlive the tally's use (until the next reset).
+    subset_tally(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit) {
+        reset(splits, trials, dense_limit);
+    }
+    subset_tally() = default;
+
+    /// Starts again on other splits (or trials), reusing the buffers: forgets every word and histogram.
+    void reset(const std::vector<nested_split>& splits, std::size_t trials, count dense_limit);
 
     /// Forgets every word and histogram.
     void clear();
@@ -40,7 +47,10 @@ public:
     void add_histogram(const sparse_words::entry* first, const sparse_words::entry* last, count per_trial);
 
     /// Summary of the summed histograms of subset `subset_index(level, block)` of split `split`.
-    count_summary summary(std::size_t split, int subset) const;
+    count_summary summary(std::size_t split, int subset);
+    /// The same for every subset of every split at once (out[split * 15 + subset]), in one pass over
+    /// the table: the same numbers, bit for bit, as summary() of each.
+    void summaries(std::vector<count_summary>& out);
 
 private:
     /// Every run of equal codes as a word; with `by_trial`, listed_ counts the entries of each trial.
@@ -64,15 +74,37 @@ private:
         }
         ++frequency_[n * cells_ + cell];
         largest_ = std::max(largest_, n);
+        if (n > wide_row_) mark_row(n);
     }
+    template <bool wide>
+    void tally_rows(const std::uint32_t* eighths);
+    /// Rows above wide_row_ are used by few words; they are listed when first used, so that summaries
+    /// and clearing visit those rows only, not every row up to the largest count.
+    void mark_row(count n) {
+        if (row_marked_[n]) return;
+        row_marked_[n] = 1;
+        marked_rows_.push_back(n);
+    }
+    /// Adds row n of the table to the summaries of every cell (with the repeats of its words).
+    void add_row(count n, count_summary* out, count* repeats) const;
+    /// The rows in use in ascending order: every row from 2 to wide_row_, then the marked ones.
+    template <typename Visit>
+    void for_each_row(Visit&& visit) const;
     static constexpr std::ptrdiff_t few_occurrences = 3;
+    /// Histograms of one word per trial that list at most this many words count their all-zero word
+    /// by its differences from "once in every trial" (add_zero_word_few); more are counted per eighth.
+    static constexpr std::size_t few_listed = 2;
+    void add_zero_word_few(const sparse_words::entry* first, const sparse_words::entry* last);
+    /// Adds to the table what add_zero_word_few left pending. Before any summary.
+    void settle();
 
-    const std::vector<nested_split>& splits_;
-    std::size_t trials_;
-    std::size_t lanes_;                     // splits * 8
-    count dense_limit_;
-    std::size_t rows_;                      // dense_limit + 1
-    std::size_t cells_;                     // splits * 15
+    const std::vector<nested_split>* splits_ = nullptr;
+    std::size_t splits_count_ = 0;
+    std::size_t trials_ = 0;
+    std::size_t lanes_ = 0;                 // splits * 8
+    count dense_limit_ = 2;
+    std::size_t rows_ = 0;                  // dense_limit + 1
+    std::size_t cells_ = 0;                 // splits * 15
     std::vector<std::uint8_t> lane_of_;     // trials x lanes_: 1 in lane split * 8 + block of the trial
     std::vector<std::uint32_t> lane_index_; // trials x splits: the lane of the trial in each split
     std::vector<count> eighth_size_;        // lanes_: trials in each eighth
@@ -84,6 +116,13 @@ private:
     // cell's start a near multiple of 4 KiB apart, onto a few cache sets (7x slower at 2^16 words).
     std::vector<std::uint32_t> frequency_;
     count largest_ = 0;                     // the largest tabulated n of any cell
+    count wide_row_ = 0;                    // rows above this are marked when used
+    std::vector<std::uint8_t> row_marked_;  // rows_
+    std::vector<count> marked_rows_;
+    mutable std::vector<count> sorted_rows_;
+    mutable std::vector<count> repeats_;    // per cell, while summarising
+    count zero_full_ = 0;                   // histograms whose all-zero word is pending in every cell
+    std::vector<std::uint32_t> zero_less_one_;  // per trial: of those, the ones listing only that trial
     std::vector<count_summary> beyond_;     // per cell, words seen more than dense_limit times
     count per_trial_ = 0;                   // words per trial, over the closed histograms
     std::vector<std::uint32_t> eighths_;    // lanes_

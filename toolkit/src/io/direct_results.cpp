@@ -44,6 +44,8 @@ json record_json(const direct_record& r) {
             {"trial_duration_s", r.trial_duration},
             {"mean_rate_hz", r.mean_rate_hz},
             {"by_letters", by_letters},
+            {"letters_computed", {e.by_letters.front().letters, e.by_letters.back().letters}},
+            {"letters_computed_until", length_stop_name(e.letters_stop)},
             {"fit_letters", {e.fit_letters.first, e.fit_letters.second}},
             {"fit_letters_from", e.fit_letters_from_user ? "option" : "sampling rule"},
             {"total_entropy_rate_bits_per_s", e.total_rate},
@@ -80,6 +82,7 @@ nlohmann::ordered_json direct_parameters_json(const direct_request& q) {
             {"splits", s.splits},
             {"subset_estimator", subset_estimator_name(s.subsets)},
             {"bias_tolerance", s.bias_tolerance},
+            {"every_length", s.every_length},
             {"null_rotations", q.null_rotations},
             {"seed", s.seed},
             {"threads", q.threads}};
