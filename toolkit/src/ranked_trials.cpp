@@ -37,32 +37,34 @@ count_summary ranked_trials::summary_clearing(std::uint32_t* counts, std::size_t
 }
 
 namespace {
-// Only the plug-in entropy is needed here: the jackknife's sum (a log per bin) is skipped.
-double plugin_clearing(std::uint32_t* counts, std::size_t size) {
+// Only the plug-in entropy is needed here: the jackknife's sum (a log per bin) is skipped. `visit`
+// calls its argument on each entry of the table that may be non-zero, in increasing order; each is
+// cleared as it is read, so the table is zero again afterwards.
+template <class Visit>
+double plugin_clearing_visited(std::uint32_t* counts, Visit visit) {
     count samples = 0;
     double sum_n_log2_n = 0;
-    for (std::size_t r = 0; r < size; ++r) {
+    visit([&](std::size_t r) {
         const count n = counts[r];
-        if (n == 0) continue;
+        if (n == 0) return;
         samples += n;
         if (n > 1) sum_n_log2_n += n_log2_n(n);
         counts[r] = 0;
-    }
+    });
     return plugin_entropy(mean_summary{static_cast<double>(samples), 0, sum_n_log2_n, 0});
+}
+
+double plugin_clearing(std::uint32_t* counts, std::size_t size) {
+    return plugin_clearing_visited(counts, [size](auto&& read) {
+        for (std::size_t r = 0; r < size; ++r) read(r);
+    });
 }
 
 /// The same over the entries `at` (increasing) of a table that is zero elsewhere.
 double plugin_clearing(std::uint32_t* counts, const std::vector<std::uint32_t>& at) {
-    count samples = 0;
-    double sum_n_log2_n = 0;
-    for (const std::uint32_t r: at) {
-        const count n = counts[r];
-        if (n == 0) continue;
-        samples += n;
-        if (n > 1) sum_n_log2_n += n_log2_n(n);
-        counts[r] = 0;
-    }
-    return plugin_entropy(mean_summary{static_cast<double>(samples), 0, sum_n_log2_n, 0});
+    return plugin_clearing_visited(counts, [&at](auto&& read) {
+        for (const std::uint32_t r: at) read(r);
+    });
 }
 }  // namespace
 
