@@ -74,7 +74,7 @@ const inputs& shared_inputs() {
         i.large = i.folder + "/large.h5";
         i.result = i.folder + "/d.json";
         EXPECT_EQ(run_rastrum("synth conditions --out " + shell_quoted(i.labelled) + " --trials-per-condition 50 --duration-s 1").exit_code, 0);
-        EXPECT_EQ(run_rastrum("synth poisson --out " + shell_quoted(i.frozen) + " --trials 100 --duration-s 4 --rate-hz 20,30 --seed 3").exit_code, 0);
+        EXPECT_EQ(run_rastrum("synth poisson --out " + shell_quoted(i.frozen) + " --trials 200 --duration-s 10 --rate-hz 20,30 --seed 3").exit_code, 0);
         i.large_csv = i.folder + "/large.csv";
         i.trials_csv = i.folder + "/trials.csv";
         const rastrum::recording large = random_units(10, 1000000, 0.9, true, 5);
@@ -90,7 +90,7 @@ std::vector<workload> workloads(const std::string& folder) {
     const inputs& in = shared_inputs();
     const std::string out = shell_quoted(folder + "/");
     return {
-        {"direct", "direct " + shell_quoted(in.frozen) + " --bin-ms 2 --letters 1-8 --null-rotations 3 --threads 2 --json " + out +
+        {"direct", "direct " + shell_quoted(in.frozen) + " --bin-ms 1 --letters 1-16 --every-length --null-rotations 199 --threads 2 --json " + out +
                        "d.json --csv " + out + "d.csv --h5 " + out + "d.h5",
          {"d.json", "d.csv", "d.h5"}},
         {"stiminfo", "stiminfo " + shell_quoted(in.labelled) + " --window-ms 0:1000 --code word --bin-ms 100 --null-shuffles 200000 "
