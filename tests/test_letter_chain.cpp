@@ -1,0 +1,140 @@
+// The record-fitted letter model behind the direct method's calibration (letter_chain.hpp): its
+// exact word entropies against a brute-force enumeration of whole trials, and its draws against
+// its own exact entropies.
+#include <rastrum/binning.hpp>
+#include <rastrum/letter_chain.hpp>
+#include <rastrum/sparse_letters.hpp>
+#include <rastrum/random.hpp>
+
+#include <gtest/gtest.h>
+
+#include <array>
+#include <cmath>
+#include <map>
+#include <vector>
+
+using namespace rastrum;
+
+namespace {
+
+letter_matrix random_letters(std::size_t trials, std::size_t bins, letter largest, std::uint64_t seed) {
+    letter_matrix m;
+    m.trials = trials;
+    m.bins = bins;
+    m.letters.resize(trials * bins);
+    random_stream rng(seed);
+    for (std::size_t b = 0; b < bins; ++b) {
+        for (std::size_t k = 0; k < trials; ++k) {
+            // Mostly silent, and more likely to spike again after a spike: dependence to model.
+            const bool before = b > 0 && m.at(b - 1, k) > 0;
+            const double u = rng.uniform();
+            letter x = 0;
+            if (u < (before ? 0.45 : 0.2)) x = 1 + static_cast<letter>(rng.below(largest));
+            m.letters[b * trials + k] = x;
+            m.largest = std::max(m.largest, x);
+            m.spikes += x;
+        }
+    }
+    return m;
+}
+
+double entropy_of(const std::map<std::vector<letter>, double>& dist) {
+    double h = 0;
+    for (const auto& [w, p]: dist) {
+        if (p > 0) h -= p * std::log2(p);
+    }
+    return h;
+}
+
+}  // namespace
+
+// The model fitted with no pseudo-trials holds the empirical transition frequencies (computed here
+// from the letter matrix by a separate count). Enumerating every whole trial (alphabet^bins of
+// them) with its probability, the product of its transitions, and marginalising to the words at
+// each start position gives the noise entropy (mean over positions) and the total entropy (of the
+// mixture over positions) by definition (Strong et al. 1998, Phys. Rev. Lett. 80:197, for the two
+// ensembles). Both must equal the model's chain-rule and prefix-growth computation.
+TEST(letter_chain, word_entropies_equal_a_brute_force_enumeration_of_whole_trials) {
+    const std::size_t trials = 40, bins = 7;
+    const letter_matrix m = random_letters(trials, bins, 2, 11);
+    const std::size_t A = m.largest + 1;
+    ASSERT_EQ(A, 3u);
+    // Empirical transitions: probs[t][state][a].
+    std::vector<std::array<std::vector<double>, 2>> probs(bins);
+    for (std::size_t t = 0; t < bins; ++t) {
+        std::array<std::vector<double>, 2> c{std::vector<double>(A, 0), std::vector<double>(A, 0)};
+        for (std::size_t k = 0; k < trials; ++k) {
+            const int s = t > 0 && m.at(t - 1, k) > 0;
+            c[s][m.at(t, k)] += 1;
+        }
+        for (auto& row: c) {
+            double n = 0;
+            for (double x: row) n += x;
+            for (double& x: row) x = n > 0 ? x / n : 0;
+        }
+        probs[t] = c;
+    }
+    const letter_chain chain(sparse_of(m), 0.0);
+    std::size_t sequences = 1;
+    for (std::size_t t = 0; t < bins; ++t) sequences *= A;
+    for (int L = 1; L <= 4; ++L) {
+        const std::size_t positions = bins - static_cast<std::size_t>(L) + 1;
+        std::vector<std::map<std::vector<letter>, double>> at(positions);
+        for (std::size_t code = 0; code < sequences; ++code) {
+            std::vector<letter> x(bins);
+            std::size_t c = code;
+            for (std::size_t t = 0; t < bins; ++t, c /= A) x[t] = static_cast<letter>(c % A);
+            double p = 1;
+            for (std::size_t t = 0; t < bins && p > 0; ++t) p *= probs[t][t > 0 && x[t - 1] > 0][x[t]];
+            if (p == 0) continue;
+            for (std::size_t t = 0; t < positions; ++t) at[t][std::vector<letter>(x.begin() + t, x.begin() + t + L)] += p;
+        }
+        double noise = 0;
+        std::map<std::vector<letter>, double> pooled;
+        for (const auto& d: at) {
+            noise += entropy_of(d);
+            for (const auto& [w, p]: d) pooled[w] += p / static_cast<double>(positions);
+        }
+        noise /= static_cast<double>(positions);
+        const auto e = chain.entropies(L);
+        EXPECT_NEAR(e.noise, noise, 1e-12) << "L = " << L;
+        EXPECT_NEAR(e.total, entropy_of(pooled), 1e-12) << "L = " << L;
+    }
+}
+
+// Data drawn from the model, fitted again, give back the model's entropies within the sampling
+// error of many trials: the draw follows the model's transitions, state by state.
+TEST(letter_chain, data_drawn_from_the_model_refit_to_its_entropies) {
+    const letter_matrix m = random_letters(60, 50, 2, 5);
+    const letter_chain chain(sparse_of(m), 1.0);
+    sparse_letters drawn;
+    chain.draw(20000, 99, drawn);
+    EXPECT_EQ(drawn.trials, 20000u);
+    EXPECT_EQ(drawn.bins, 50u);
+    const letter_chain again(drawn, 0.0);
+    for (int L: {1, 3, 5}) {
+        const auto a = chain.entropies(L), b = again.entropies(L);
+        EXPECT_NEAR(a.noise, b.noise, 0.01 * L) << "L = " << L;
+        EXPECT_NEAR(a.total, b.total, 0.01 * L) << "L = " << L;
+        EXPECT_GT(a.total, a.noise);
+    }
+    // The same seed draws the same data.
+    sparse_letters twice;
+    chain.draw(20000, 99, twice);
+    EXPECT_EQ(twice.nonzero.size(), drawn.nonzero.size());
+    EXPECT_EQ(twice.spikes, drawn.spikes);
+}
+
+// A recording without spikes fits a model that never spikes; the enumeration limit holds.
+TEST(letter_chain, silence_and_the_enumeration_limit) {
+    letter_matrix m;
+    m.trials = 10;
+    m.bins = 30;
+    m.letters.assign(300, 0);
+    const letter_chain chain(sparse_of(m));
+    EXPECT_EQ(chain.alphabet(), 2u);
+    EXPECT_EQ(chain.longest_enumerable(), 14);
+    const auto e = chain.entropies(5);
+    EXPECT_DOUBLE_EQ(e.total, 0.0);
+    EXPECT_DOUBLE_EQ(e.noise, 0.0);
+}

@@ -1,0 +1,189 @@
+#include <rastrum/errors.hpp>
+#include <rastrum/letter_chain.hpp>
+#include <rastrum/random.hpp>
+
+#include <algorithm>
+#include <cmath>
+
+namespace rastrum {
+
+namespace {
+
+double entropy_bits(const double* p, std::size_t n) {
+    double h = 0;
+    for (std::size_t a = 0; a < n; ++a) {
+        if (p[a] > 0) h -= p[a] * std::log2(p[a]);
+    }
+    return h;
+}
+
+}  // namespace
+
+letter_chain::letter_chain(const sparse_letters& letters, double pseudo_trials)
+    : bins_(letters.bins), alphabet_(std::max<std::size_t>(2, std::size_t{letters.largest} + 1)) {
+    if (letters.trials == 0 || letters.bins == 0) throw internal_error("letter_chain needs at least one trial and one bin");
+    const std::size_t A = alphabet_;
+    // counts[(t * 2 + s) * A + a]: trials with letter a in bin t whose previous bin was in state s.
+    // The first bin of a trial counts as following a silent one, as it does when drawn.
+    std::vector<double> counts(bins_ * 2 * A, 0.0);
+    std::vector<std::uint8_t> spiked(letters.trials, 0);
+    std::vector<std::uint32_t> spiked_before;  // the trials whose previous bin held a spike
+    double spiking_trials = 0;
+    for (std::size_t t = 0; t < bins_; ++t) {
+        double* silent = counts.data() + (t * 2) * A;
+        double* after_spike = silent + A;
+        silent[0] = static_cast<double>(letters.trials) - spiking_trials;
+        after_spike[0] = spiking_trials;
+        for (std::uint32_t i = letters.bin_start[t]; i < letters.bin_start[t + 1]; ++i) {
+            const auto& e = letters.nonzero[i];
+            double* row = spiked[e.trial] ? after_spike : silent;
+            row[0] -= 1;
+            row[e.value] += 1;
+        }
+        for (const std::uint32_t k: spiked_before) spiked[k] = 0;
+        spiked_before.clear();
+        for (std::uint32_t i = letters.bin_start[t]; i < letters.bin_start[t + 1]; ++i) {
+            spiked[letters.nonzero[i].trial] = 1;
+            spiked_before.push_back(letters.nonzero[i].trial);
+        }
+        spiking_trials = static_cast<double>(spiked_before.size());
+    }
+
+    // Each state's letter distribution pooled over bins: where a bin has few trials in a state, its
+    // distribution is drawn toward this one. A state never seen borrows the other's.
+    std::vector<double> pooled(2 * A, 0.0);
+    for (std::size_t t = 0; t < bins_; ++t) {
+        for (std::size_t j = 0; j < 2 * A; ++j) pooled[j] += counts[t * 2 * A + j];
+    }
+    for (int s = 0; s < 2; ++s) {
+        double n = 0;
+        for (std::size_t a = 0; a < A; ++a) n += pooled[s * A + a];
+        if (n > 0) {
+            for (std::size_t a = 0; a < A; ++a) pooled[s * A + a] /= n;
+        } else {
+            std::fill(pooled.begin() + static_cast<std::ptrdiff_t>(s * A), pooled.begin() + static_cast<std::ptrdiff_t>((s + 1) * A), 0.0);
+        }
+    }
+    for (int s = 0; s < 2; ++s) {
+        double n = 0;
+        for (std::size_t a = 0; a < A; ++a) n += pooled[s * A + a];
+        if (n == 0) std::copy_n(pooled.begin() + static_cast<std::ptrdiff_t>((1 - s) * A), A, pooled.begin() + static_cast<std::ptrdiff_t>(s * A));
+    }
+
+    p_.assign(bins_ * 2 * A, 0.0);
+    for (std::size_t t = 0; t < bins_; ++t) {
+        for (int s = 0; s < 2; ++s) {
+            const double* c = counts.data() + (t * 2 + static_cast<std::size_t>(s)) * A;
+            double n = 0;
+            for (std::size_t a = 0; a < A; ++a) n += c[a];
+            double* p = p_.data() + (t * 2 + static_cast<std::size_t>(s)) * A;
+            // A state no trial was in at this bin (and no pseudo-trials) takes the pooled distribution.
+            for (std::size_t a = 0; a < A; ++a) {
+                p[a] = n + pseudo_trials > 0 ? (c[a] + pseudo_trials * pooled[s * A + a]) / (n + pseudo_trials) : pooled[s * A + a];
+            }
+        }
+    }
+
+    spiking_.resize(bins_);
+    double before = 0;  // a trial starts after a silent bin
+    for (std::size_t t = 0; t < bins_; ++t) {
+        spiking_[t] = (1 - before) * (1 - distribution(t, 0)[0]) + before * (1 - distribution(t, 1)[0]);
+        before = spiking_[t];
+    }
+}
+
+int letter_chain::longest_enumerable() const {
+    int L = 0;
+    std::size_t words = 1;
+    while (static_cast<std::size_t>(L) < bins_ && words * alphabet_ <= max_enumerated_words) {
+        words *= alphabet_;
+        ++L;
+    }
+    return L;
+}
+
+letter_chain::word_entropies letter_chain::entropies(int letters_per_word) const {
+    if (letters_per_word < 1 || letters_per_word > longest_enumerable()) {
+        throw internal_error("letter_chain::entropies: word length out of range");
+    }
+    const std::size_t A = alphabet_;
+    const auto L = static_cast<std::size_t>(letters_per_word);
+    const std::size_t positions = bins_ - L + 1;
+    std::vector<double> marginal(A);
+    // Letter t's marginal distribution and its entropy given letter t - 1: the next letter depends
+    // on the past only through whether the previous bin spiked, so by the chain rule a word's
+    // entropy at t is H(X_t) + sum over j of H(X_t+j | state of t+j-1) (Cover & Thomas 2006,
+    // Theorem 2.5.1, and the Markov property; from memory).
+    std::vector<double> letter_entropy(bins_), conditional(bins_);
+    for (std::size_t t = 0; t < bins_; ++t) {
+        const double before = t == 0 ? 0.0 : spiking_[t - 1];
+        for (std::size_t a = 0; a < A; ++a) marginal[a] = (1 - before) * distribution(t, 0)[a] + before * distribution(t, 1)[a];
+        letter_entropy[t] = entropy_bits(marginal.data(), A);
+        conditional[t] = (1 - before) * entropy_bits(distribution(t, 0), A) + before * entropy_bits(distribution(t, 1), A);
+    }
+    word_entropies out;
+    double window = 0;  // sum of conditional[t + 1 .. t + L - 1]
+    for (std::size_t j = 1; j < L; ++j) window += conditional[j];
+    for (std::size_t t = 0; t < positions; ++t) {
+        if (t > 0 && L > 1) window += conditional[t + L - 1] - conditional[t];
+        out.noise += letter_entropy[t] + window;
+    }
+    out.noise /= static_cast<double>(positions);
+
+    // The pooled words: each position's word distribution, grown letter by letter (the last letter
+    // is the least significant digit), summed over positions.
+    std::size_t words = 1;
+    for (std::size_t j = 0; j < L; ++j) words *= A;
+    std::vector<double> pooled(words, 0.0), one(words);
+    for (std::size_t t = 0; t < positions; ++t) {
+        const double before = t == 0 ? 0.0 : spiking_[t - 1];
+        for (std::size_t a = 0; a < A; ++a) one[a] = (1 - before) * distribution(t, 0)[a] + before * distribution(t, 1)[a];
+        std::size_t filled = A;
+        for (std::size_t j = 1; j < L; ++j) {
+            const double* silent = distribution(t + j, 0);
+            const double* spiking = distribution(t + j, 1);
+            for (std::size_t w = filled; w-- > 0;) {
+                const double* next = (w % A) != 0 ? spiking : silent;
+                const double pw = one[w];
+                for (std::size_t a = A; a-- > 0;) one[w * A + a] = pw * next[a];
+            }
+            filled *= A;
+        }
+        for (std::size_t w = 0; w < words; ++w) pooled[w] += one[w];
+    }
+    for (double& x: pooled) x /= static_cast<double>(positions);
+    out.total = entropy_bits(pooled.data(), words);
+    return out;
+}
+
+void letter_chain::draw(std::size_t trials, std::uint64_t seed, sparse_letters& out) const {
+    random_stream rng(seed);
+    out.trials = trials;
+    out.bins = bins_;
+    out.largest = 0;
+    out.spikes = 0;
+    out.bin_start.assign(1, 0);
+    out.nonzero.clear();
+    std::vector<std::uint8_t> spiked(trials, 0);
+    for (std::size_t t = 0; t < bins_; ++t) {
+        for (std::size_t k = 0; k < trials; ++k) {
+            const double* p = distribution(t, spiked[k]);
+            double u = rng.uniform();
+            letter a = 0;
+            // Inversion; most letters are 0, settled by the first comparison.
+            while (u >= p[a] && a + 1 < alphabet_) {
+                u -= p[a];
+                ++a;
+            }
+            spiked[k] = a > 0;
+            if (a > 0) {
+                out.nonzero.push_back({static_cast<std::uint32_t>(k), a});
+                out.largest = std::max(out.largest, a);
+                out.spikes += a;
+            }
+        }
+        out.bin_start.push_back(static_cast<std::uint32_t>(out.nonzero.size()));
+    }
+}
+
+}  // namespace rastrum
