@@ -16,7 +16,9 @@ int run_direct(int argc, char** argv) {
     std::string file, bin_text, letters_text, fit_text, stimulus, subset_text;
     shared_options shared;
     std::string splits_text = std::to_string(defaults.settings.splits), seed_text = std::to_string(defaults.settings.seed),
-                threads_text = "0", rotations_text = "0";
+                threads_text = "0", rotations_text = "0",
+                surrogates_text = std::to_string(defaults.settings.surrogates),
+                surrogate_splits_text = std::to_string(defaults.settings.surrogate_splits);
     direct_request request;
     po::options_description options("Options");
     options.add_options()
@@ -43,6 +45,19 @@ int run_direct(int argc, char** argv) {
          "repeat the estimate on N copies of the data with each trial rotated in time by a random offset (which "
          "removes the information but keeps each trial's statistics): reports the null mean, the null-subtracted "
          "rate and a permutation p-value; costs N extra estimates")
+        ("surrogates", po::value(&surrogates_text)->default_value(surrogates_text),
+         "calibrate each estimate at its own sample size on N surrogate data sets drawn from a model fitted to the "
+         "record (its firing time course and bin-to-bin dependence, with exactly known answers): the rate is "
+         "corrected by the measured bias, its interval follows the measured error, and the word lengths of the "
+         "fit are the longest whose error is within --error-tolerance; 0 turns it off; costs about N/4 extra "
+         "estimates (notes/methods.md, \"Calibration\")")
+        ("surrogate-splits", po::value(&surrogate_splits_text)->default_value(surrogate_splits_text),
+         "random nested splits of the trials in each surrogate's estimate")
+        ("error-tolerance", number_value(&request.settings.error_tolerance),
+         "calibration: a fit range is within tolerance when its calibrated error is at most this fraction of the "
+         "rate (or --error-floor bits per spike, if larger)")
+        ("error-floor", number_value(&request.settings.error_floor_bits_per_spike),
+         "calibration: the smallest error tolerance, in bits per spike (times the mean firing rate)")
         ("seed", po::value(&seed_text)->default_value(seed_text), "seed of the random splits (a whole number)")
         ("threads", po::value(&threads_text)->default_value(threads_text),
          "worker threads (0: one per core); results do not depend on it");
@@ -61,6 +76,9 @@ int run_direct(int argc, char** argv) {
     request.settings.splits = static_cast<unsigned>(parse_whole_number(splits_text, "--splits", 2, 1000));
     request.settings.seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
     request.threads = static_cast<unsigned>(parse_whole_number(threads_text, "--threads", 0, 1024));
+    request.settings.surrogates = static_cast<unsigned>(parse_whole_number(surrogates_text, "--surrogates", 0, 10000));
+    request.settings.surrogate_splits =
+        static_cast<unsigned>(parse_whole_number(surrogate_splits_text, "--surrogate-splits", 2, 1000));
     request.null_rotations = static_cast<unsigned>(parse_whole_number(rotations_text, "--null-rotations", 0, 100000));
     std::tie(request.settings.letters_min, request.settings.letters_max) = parse_int_range(letters_text, "--letters");
     if (vm.count("fit-letters")) request.settings.fit_letters = parse_int_range(fit_text, "--fit-letters");

@@ -123,8 +123,11 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
             same_lengths.fit_letters = r.estimate.fit_letters;
             std::tie(same_lengths.letters_min, same_lengths.letters_max) = r.estimate.fit_letters;
             same_lengths.every_length = false;
-            r.null = rotation_null_distribution(letters, bin_width, same_lengths, request.null_rotations,
-                                                r.estimate.info_rate, settings.seed, workspace);
+            // The null compares like with like: the rotations' plain rates with the record's plain rate.
+            same_lengths.surrogates = 0;
+            const double observed = r.estimate.calibration ? r.estimate.calibration->plain_info_rate : r.estimate.info_rate;
+            r.null = rotation_null_distribution(letters, bin_width, same_lengths, request.null_rotations, observed,
+                                                settings.seed, workspace);
             if (r.null.p_value > 0.05) {
                 r.warnings.push_back("not distinguishable from trials rotated out of register with the stimulus (p = " +
                                      format_number(r.null.p_value) + ")");

@@ -12,6 +12,7 @@ const char* length_stop_name(length_stop why) {
     case length_stop::letters_max: return "--letters";
     case length_stop::fit_letters: return "--fit-letters";
     case length_stop::sampling_rule: return "sampling rule";
+    case length_stop::calibration: return "calibration";
     }
     throw internal_error("unknown length stop");
 }

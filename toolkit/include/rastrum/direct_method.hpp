@@ -7,6 +7,7 @@
 /// The formulas, the rule that picks the word lengths of the 1/L fit, and the evidence for that
 /// rule are in notes/methods.md.
 #include <rastrum/binning.hpp>
+#include <rastrum/direct_calibration.hpp>
 #include <rastrum/sparse_letters.hpp>
 #include <rastrum/extrapolation.hpp>
 #include <rastrum/types.hpp>
@@ -37,9 +38,9 @@ inline constexpr double sparse_spikes_per_position = 0.5;
 /// Why the direct method computed no longer word length (fit_lengths.hpp): the longest length asked
 /// for was reached, the end of the user's fit range, or a length past which the sampling rule lets
 /// no longer one into the fit.
-enum class length_stop { letters_max = 0, fit_letters = 1, sampling_rule = 2 };
+enum class length_stop { letters_max = 0, fit_letters = 1, sampling_rule = 2, calibration = 3 };
 
-/// "--letters", "--fit-letters" or "sampling rule": the JSON's `letters_computed_until`.
+/// "--letters", "--fit-letters", "sampling rule" or "calibration": the JSON's `letters_computed_until`.
 const char* length_stop_name(length_stop why);
 
 struct direct_settings {
@@ -57,6 +58,17 @@ struct direct_settings {
     /// Compute every length up to letters_max, also those past the first one after which no length
     /// can enter the fit (for the curves in 1/L; the rates are the same either way).
     bool every_length = false;
+    /// Calibration at the record's own sample size (direct_calibration.hpp): surrogate data sets
+    /// per record; 0 turns it off. With it, the calibration chooses the fit range (unless
+    /// fit_letters is given) and the rate, its standard error and interval are the calibrated ones.
+    unsigned surrogates = 0;
+    /// Random splits of the trials in each surrogate's estimate: the estimator's mean over random
+    /// splits does not depend on their number, only its spread does, a little (notes/methods.md).
+    unsigned surrogate_splits = 2;
+    /// A calibrated error within this fraction of the rate, or within error_floor_bits_per_spike
+    /// times the mean firing rate, is within tolerance.
+    double error_tolerance = 0.05;
+    double error_floor_bits_per_spike = 0.02;
 };
 
 /// The extrapolation to infinite data at one word length, as a figure shows it: the mean entropy by
@@ -118,6 +130,9 @@ struct direct_estimate {
     line_fit noise_rate_fit;
     std::vector<double> half_info_rates;  // the estimate on each random half of the trials [bits/s]
     std::vector<std::string> warnings;
+    /// Present when settings.surrogates > 0; then info_rate, info_rate_se and info_rate_ci95 are the
+    /// calibrated ones and the calibration keeps the plain ones.
+    std::optional<rate_calibration> calibration;
 };
 
 /// Buffers one thread reuses from one estimate to the next (words, subset tallies, rotated letters),

@@ -33,6 +33,31 @@ json letters_json(const letters_estimate& le) {
             {"well_sampled", le.well_sampled}};
 }
 
+json calibration_json(const direct_estimate& e) {
+    if (!e.calibration) return nullptr;
+    const rate_calibration& c = *e.calibration;
+    json by_fit = json::array();
+    for (const auto& f: c.by_fit) {
+        by_fit.push_back({{"fit_letters", {f.fit.first, f.fit.second}},
+                          {"info_rate_plain_bits_per_s", f.rate},
+                          {"model_info_rate_bits_per_s", f.model_rate},
+                          {"bias_bits_per_s", f.bias},
+                          {"spread_bits_per_s", f.spread},
+                          {"error_bits_per_s", f.error},
+                          {"within_tolerance", f.within_tolerance}});
+    }
+    return {{"surrogates", c.surrogates},
+            {"tolerance_bits_per_s", c.tolerance},
+            {"uncertain", c.uncertain},
+            {"bias_bits_per_s", c.by_fit[c.chosen].bias},
+            {"error_bits_per_s", c.by_fit[c.chosen].error},
+            {"plain",
+             {{"info_rate_bits_per_s", c.plain_info_rate},
+              {"info_rate_se_bits_per_s", c.plain_info_rate_se},
+              {"info_rate_ci95_bits_per_s", {c.plain_info_rate_ci95.first, c.plain_info_rate_ci95.second}}}},
+            {"by_fit", by_fit}};
+}
+
 json record_json(const direct_record& r) {
     const direct_estimate& e = r.estimate;
     json by_letters = json::array();
@@ -47,7 +72,7 @@ json record_json(const direct_record& r) {
             {"letters_computed", {e.by_letters.front().letters, e.by_letters.back().letters}},
             {"letters_computed_until", length_stop_name(e.letters_stop)},
             {"fit_letters", {e.fit_letters.first, e.fit_letters.second}},
-            {"fit_letters_from", e.fit_letters_from_user ? "option" : "sampling rule"},
+            {"fit_letters_from", e.fit_letters_from_user ? "option" : e.calibration ? "calibration" : "sampling rule"},
             {"total_entropy_rate_bits_per_s", e.total_rate},
             {"noise_entropy_rate_bits_per_s", e.noise_rate},
             {"info_rate_bits_per_s", e.info_rate},
@@ -64,9 +89,11 @@ json record_json(const direct_record& r) {
                                                   {"sd_bits_per_s", r.null.sd},
                                                   {"p_value", r.null.p_value}}},
             {"info_rate_null_subtracted_bits_per_s",
-             r.null.rotations == 0 ? json(nullptr) : json(e.info_rate - r.null.mean)},
+             r.null.rotations == 0 ? json(nullptr)
+                                   : json((e.calibration ? e.calibration->plain_info_rate : e.info_rate) - r.null.mean)},
             {"bits_per_spike", number_or_null(r.bits_per_spike)},
             {"coding_efficiency", number_or_null(r.coding_efficiency)},
+            {"calibration", calibration_json(e)},
             {"warnings", r.warnings}};
 }
 }  // namespace
@@ -83,6 +110,10 @@ nlohmann::ordered_json direct_parameters_json(const direct_request& q) {
             {"subset_estimator", subset_estimator_name(s.subsets)},
             {"bias_tolerance", s.bias_tolerance},
             {"every_length", s.every_length},
+            {"surrogates", s.surrogates},
+            {"surrogate_splits", s.surrogate_splits},
+            {"error_tolerance", s.error_tolerance},
+            {"error_floor_bits_per_spike", s.error_floor_bits_per_spike},
             {"null_rotations", q.null_rotations},
             {"seed", s.seed},
             {"threads", q.threads}};

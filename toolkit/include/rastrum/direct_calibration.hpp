@@ -1,0 +1,54 @@
+#pragma once
+/// Calibration of the direct method at the record's own sample size (notes/methods.md,
+/// "Calibration"): surrogate data sets drawn from a model fitted to the record (letter_chain.hpp:
+/// its time course of firing and its bin-to-bin dependence, with exactly known word entropies),
+/// with the record's trials and bins, are analysed by the same estimator. Their error against the
+/// model's exact answer measures, for each candidate fit range, the estimator's bias and spread
+/// at this sample size (a parametric bootstrap: Efron & Tibshirani 1993, *An Introduction to the
+/// Bootstrap*, ch. 6 and 10). From that:
+///   - the rate is corrected by the measured bias;
+///   - its 95% interval is +-1.96 calibrated errors (the surrogates' spread, the uncertainty of
+///     their mean, and half the bias, since the model is fitted to the data rather than to the truth);
+///   - the fit range is the longest whose calibrated error is within the tolerance, so longer words
+///     enter whenever the data support them (the user's `--fit-letters` still decides when given);
+///   - a record is marked uncertain when no range meets the tolerance.
+#include <cstddef>
+#include <utility>
+#include <vector>
+
+namespace rastrum {
+
+/// One candidate fit range: the upper half of lengths 1..b (b from the shortest length on), as the
+/// sampling rule fits it.
+struct calibrated_fit {
+    std::pair<int, int> fit{0, 0};
+    double rate = 0;        // [bits/s] the record's information rate over this range, uncorrected
+    double model_rate = 0;  // [bits/s] the model's exact rate over this range
+    double bias = 0;        // [bits/s] mean surrogate rate - model_rate
+    double spread = 0;      // [bits/s] standard deviation of the surrogate rates
+    double error = 0;       // [bits/s] calibrated error of rate - bias
+    bool within_tolerance = false;
+};
+
+struct rate_calibration {
+    unsigned surrogates = 0;
+    std::vector<calibrated_fit> by_fit;  // every range examined, shortest first
+    std::size_t chosen = 0;              // index into by_fit
+    double tolerance = 0;                // [bits/s] the error allowed for the chosen rate
+    bool uncertain = false;              // no range met the tolerance
+    /// The estimate before calibration (the headline fields of direct_estimate hold the calibrated one).
+    double plain_info_rate = 0;
+    double plain_info_rate_se = 0;
+    std::pair<double, double> plain_info_rate_ci95{0, 0};
+};
+
+/// The tolerance [bits/s] for a rate: `relative` of its size, but never below `floor_bits_per_spike`
+/// times the mean firing rate (so that a rate near 0 is judged against the smallest information
+/// worth resolving, not against itself).
+double calibration_tolerance(double rate, double relative, double floor_bits_per_spike, double mean_rate_hz);
+
+/// The calibrated error of a corrected rate from its surrogates' bias and spread (K surrogates):
+/// sqrt(spread^2 (1 + 1/K) + (bias / 2)^2).
+double calibrated_error(double bias, double spread, unsigned surrogates);
+
+}  // namespace rastrum

@@ -1,0 +1,168 @@
+#include <rastrum/direct_calibration.hpp>
+#include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
+#include <rastrum/letter_chain.hpp>
+#include <rastrum/random.hpp>
+
+#include "direct_lengths.hpp"
+#include "direct_workspace.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <memory>
+
+namespace rastrum {
+
+double calibration_tolerance(double rate, double relative, double floor_bits_per_spike, double mean_rate_hz) {
+    return std::max(relative * std::abs(rate), floor_bits_per_spike * mean_rate_hz);
+}
+
+double calibrated_error(double bias, double spread, unsigned surrogates) {
+    const double k = std::max(1u, surrogates);
+    return std::sqrt(spread * spread * (1 + 1 / k) + 0.25 * bias * bias);
+}
+
+namespace {
+
+// Random tags of the surrogates' streams (derive_seed), apart from every other use of the seed.
+constexpr std::uint64_t surrogate_draw_tag = 0xca11b7a7e0ULL;
+constexpr std::uint64_t surrogate_split_tag = 0xca11b7a7e1ULL;
+
+/// One surrogate data set and its estimate, grown in step with the record's.
+struct surrogate {
+    sparse_letters letters;
+    direct_workspace workspace;
+    direct_settings settings;
+    std::unique_ptr<direct_lengths> lengths;
+};
+
+double mean_rate_hz(const sparse_letters& letters, seconds bin_width) {
+    const double span = static_cast<double>(letters.trials) * static_cast<double>(letters.bins) * bin_width;
+    return span > 0 ? static_cast<double>(letters.spikes) / span : 0.0;
+}
+
+/// The upper half of lengths letters_min..b, as the sampling rule fits them.
+std::pair<int, int> upper_half(int b, int letters_min) { return {std::max(letters_min, (b + 1) / 2), b}; }
+
+}  // namespace
+
+direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_width, const direct_settings& settings,
+                                    direct_workspace& workspace) {
+    direct_lengths record(letters, bin_width, settings, workspace);
+    const letter_chain model(letters);
+    const unsigned k_count = settings.surrogates;
+    std::vector<surrogate> surrogates(k_count);
+    for (unsigned k = 0; k < k_count; ++k) {
+        surrogate& s = surrogates[k];
+        model.draw(letters.trials, derive_seed(settings.seed, {surrogate_draw_tag, k}), s.letters);
+        s.settings = settings;
+        s.settings.surrogates = 0;
+        s.settings.splits = std::min(settings.surrogate_splits, settings.splits);
+        s.settings.seed = derive_seed(settings.seed, {surrogate_split_tag, k});
+        s.lengths = std::make_unique<direct_lengths>(s.letters, bin_width, s.settings, s.workspace);
+    }
+
+    // The longest length the calibration can judge: the model's word entropies are enumerated.
+    const int ceiling = std::min(settings.letters_max, model.longest_enumerable());
+    if (ceiling < settings.letters_min || (settings.fit_letters && settings.fit_letters->second > ceiling)) {
+        throw insufficient_data("the calibration enumerates words of at most " + std::to_string(model.longest_enumerable()) +
+                                " letters of this alphabet (" + std::to_string(model.alphabet()) +
+                                " letters); ask for shorter words or turn it off with --surrogates 0");
+    }
+    const double rate_hz = mean_rate_hz(letters, bin_width);
+    std::vector<double> model_total, model_noise;
+    std::vector<std::vector<double>> sur_total(k_count), sur_noise(k_count);
+    rate_calibration cal;
+    cal.surrogates = k_count;
+    int failed_in_a_row = 0;
+    length_stop stop = length_stop::letters_max;
+
+    auto examine = [&](std::pair<int, int> fit) {
+        calibrated_fit c;
+        c.fit = fit;
+        c.rate = record.info_rate(fit);
+        c.model_rate = info_rate_over(model_total, model_noise, settings.letters_min, fit, bin_width);
+        std::vector<double> rates;
+        for (unsigned k = 0; k < k_count; ++k) {
+            rates.push_back(info_rate_over(sur_total[k], sur_noise[k], settings.letters_min, fit, bin_width));
+        }
+        double mean = 0;
+        for (double r: rates) mean += r;
+        mean /= static_cast<double>(k_count);
+        double ss = 0;
+        for (double r: rates) ss += (r - mean) * (r - mean);
+        c.bias = mean - c.model_rate;
+        c.spread = std::sqrt(ss / static_cast<double>(k_count - 1));
+        c.error = calibrated_error(c.bias, c.spread, k_count);
+        c.within_tolerance = c.error <= calibration_tolerance(c.rate - c.bias, settings.error_tolerance,
+                                                              settings.error_floor_bits_per_spike, rate_hz);
+        cal.by_fit.push_back(c);
+        return c.within_tolerance;
+    };
+
+    while (record.more()) {
+        const int L = record.next().letters;
+        for (unsigned k = 0; k < k_count; ++k) {
+            const letters_estimate& e = surrogates[k].lengths->next();
+            sur_total[k].push_back(e.total_bits);
+            sur_noise[k].push_back(e.noise_bits);
+        }
+        const auto exact = model.entropies(L);
+        model_total.push_back(exact.total);
+        model_noise.push_back(exact.noise);
+        if (settings.fit_letters) {
+            if (L == settings.fit_letters->second) {
+                examine(*settings.fit_letters);
+                stop = length_stop::fit_letters;
+                break;
+            }
+            continue;
+        }
+        failed_in_a_row = examine(upper_half(L, settings.letters_min)) ? 0 : failed_in_a_row + 1;
+        // Errors grow with word length; two lengths in a row beyond the tolerance end the search.
+        if (failed_in_a_row >= 2 && !settings.every_length) {
+            stop = length_stop::calibration;
+            break;
+        }
+        if (L == ceiling) {
+            stop = ceiling < settings.letters_max ? length_stop::calibration : length_stop::letters_max;
+            break;
+        }
+    }
+
+    // The longest range within tolerance; when none is, the one with the smallest error.
+    cal.chosen = 0;
+    bool any = false;
+    for (std::size_t i = 0; i < cal.by_fit.size(); ++i) {
+        if (cal.by_fit[i].within_tolerance) {
+            cal.chosen = i;
+            any = true;
+        } else if (!any && cal.by_fit[i].error < cal.by_fit[cal.chosen].error) {
+            cal.chosen = i;
+        }
+    }
+    const calibrated_fit& chosen = cal.by_fit[cal.chosen];
+    cal.uncertain = !chosen.within_tolerance;
+    cal.tolerance = calibration_tolerance(chosen.rate - chosen.bias, settings.error_tolerance,
+                                          settings.error_floor_bits_per_spike, rate_hz);
+
+    fit_choice choice;
+    choice.letters = chosen.fit;
+    choice.from_user = settings.fit_letters.has_value();
+    if (cal.uncertain) {
+        choice.warnings.push_back(
+            "uncertain: at " + std::to_string(letters.trials) + " trials the calibrated error of the rate, " +
+            format_fixed(chosen.error, 2) + " bits/s, exceeds the tolerance of " + format_fixed(cal.tolerance, 2) +
+            " bits/s (" + format_fixed(100 * settings.error_tolerance, 0) + "% of the rate, or " +
+            format_number(settings.error_floor_bits_per_spike) +
+            " bits per spike); more trials, wider bins or shorter words would help");
+    }
+    if (!choice.from_user && chosen.fit.first == chosen.fit.second) {
+        choice.warnings.push_back("the rate comes from " + std::to_string(chosen.fit.first) +
+                                  "-letter words alone, without extrapolation to infinite word length: correlations "
+                                  "between bins further apart are not counted");
+    }
+    return record.finish(std::move(choice), stop, std::move(cal));
+}
+
+}  // namespace rastrum
