@@ -10,11 +10,12 @@
 namespace rastrum::app {
 
 int run_synth(int argc, char** argv) {
-    std::string kind, out, rates_text = "20", modulation_text = "0.8", labels_text = "a,b,c,d";
+    std::string kind, out, rates_text, modulation_text = "0.8", labels_text = "a,b,c,d";
     std::vector<std::string> means_text;
     session_shape session;
     std::string seed_text = "1", trials_text = std::to_string(session.trials), per_condition_text = "30";
     double bin_ms = 2.0, correlation_ms = 20.0, resolution_ms = 0.1, refractory = 0.0;
+    patterns_spec patterns;
     bool overwrite = false;
     po::options_description options("Options");
     options.add_options()
@@ -22,15 +23,22 @@ int run_synth(int argc, char** argv) {
          "the recording to write (NAME.h5); the exact answers go beside it as NAME.answers.json")
         ("overwrite", po::bool_switch(&overwrite), "replace NAME.h5 and NAME.answers.json if they exist")
         ("seed", po::value(&seed_text)->default_value(seed_text), "random seed (a whole number)")
-        ("trials", po::value(&trials_text)->default_value(trials_text), "trials (frozen-bins, poisson)")
+        ("trials", po::value(&trials_text)->default_value(trials_text), "trials (frozen-bins, patterns, poisson)")
         ("duration-s", number_value(&session.duration), "trial duration in s")
         ("gap-s", number_value(&session.gap), "time between trials in s")
         ("background-hz", number_value(&session.background_hz), "firing rate between trials (spikes outside every trial)")
-        ("rate-hz", po::value(&rates_text)->default_value(rates_text), "mean rate of each unit, comma-separated: one unit per value")
+        ("rate-hz", po::value(&rates_text),
+         "mean rate of each unit, comma-separated: one unit per value (default 20; patterns: 25, every bin's rate)")
         ("modulation", po::value(&modulation_text)->default_value(modulation_text),
          "one value for all units or one per unit: the coefficient of variation of the spike probability "
          "across bins (frozen-bins) or of the rate over time (poisson)")
-        ("bin-ms", number_value(&bin_ms), "frozen-bins: width of the bins in ms")
+        ("bin-ms", number_value(&bin_ms), "frozen-bins, patterns: width of the bins in ms")
+        ("bursty-fraction", number_value(&patterns.bursty_fraction),
+         "patterns: share of bins (drawn independently, frozen across trials) where a spike makes the next spike more likely")
+        ("after-spike-bursty", number_value(&patterns.after_spike_bursty),
+         "patterns: spike probability of a bursty bin right after a spike")
+        ("after-spike-refractory", number_value(&patterns.after_spike_refractory),
+         "patterns: spike probability of a refractory bin right after a spike")
         ("refractory", number_value(&refractory),
          "frozen-bins: fraction by which a spike lowers the spike probability of the next bin (0..1)")
         ("correlation-ms", number_value(&correlation_ms), "poisson: time constant of the rate's fluctuations")
@@ -43,16 +51,18 @@ int run_synth(int argc, char** argv) {
     po::variables_map vm;
     if (!parse_command(argc, argv, "synth", "KIND --out NAME.h5 [options]", options,
                        {{"kind", "KIND",
-                         "frozen-bins (independent or refractory bins with a frozen spike probability), poisson "
+                         "frozen-bins (independent or refractory bins with a frozen spike probability), patterns (every bin "
+                         "at one spike probability, information only in bursty or refractory spike patterns), poisson "
                          "(inhomogeneous Poisson firing with a frozen smooth rate) or conditions (discrete stimulus "
                          "conditions with Poisson spike counts)",
                          &kind}},
                        vm)) {
         return 0;
     }
-    if (kind != "frozen-bins" && kind != "poisson" && kind != "conditions") {
-        throw usage_error("unknown kind '" + kind + "': choose frozen-bins, poisson or conditions");
+    if (kind != "frozen-bins" && kind != "patterns" && kind != "poisson" && kind != "conditions") {
+        throw usage_error("unknown kind '" + kind + "': choose frozen-bins, patterns, poisson or conditions");
     }
+    if (rates_text.empty()) rates_text = kind == "patterns" ? "25" : "20";
     const std::uint64_t seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
     session.trials = parse_whole_number(trials_text, "--trials", 1, 1000000);
     const std::size_t per_condition = parse_whole_number(per_condition_text, "--trials-per-condition", 1, 1000000);
@@ -67,7 +77,20 @@ int run_synth(int argc, char** argv) {
                                          {"gap_s", session.gap}, {"background_hz", session.background_hz}};
     // Made and written one unit at a time, so a recording larger than memory can be made.
     std::function<synthetic_recording(const unit_ready&)> make;
-    if (kind == "frozen-bins" || kind == "poisson") {
+    if (kind == "patterns") {
+        patterns.session = session;
+        patterns.bin_ms = bin_ms;
+        patterns.rates_hz = parse_number_list(rates_text, "--rate-hz");
+        patterns.seed = seed;
+        check_spec(patterns);
+        parameters["trials"] = session.trials;
+        parameters["rate_hz"] = patterns.rates_hz;
+        parameters["bin_ms"] = bin_ms;
+        parameters["bursty_fraction"] = patterns.bursty_fraction;
+        parameters["after_spike_bursty"] = patterns.after_spike_bursty;
+        parameters["after_spike_refractory"] = patterns.after_spike_refractory;
+        make = [spec = patterns](const unit_ready& ready) { return make_patterns(spec, ready); };
+    } else if (kind == "frozen-bins" || kind == "poisson") {
         const auto rates = parse_number_list(rates_text, "--rate-hz");
         const auto modulations = parse_number_list(modulation_text, "--modulation");
         parameters["trials"] = session.trials;

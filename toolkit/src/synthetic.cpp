@@ -3,6 +3,8 @@
 #include <rastrum/random.hpp>
 #include <rastrum/synthetic.hpp>
 
+#include "synthetic_chain.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -80,87 +82,6 @@ void finish(recording& rec) {
     validate(rec);
 }
 
-/// Binary letters whose spike probability is p_t in bin t, times (1 - refractory) right after a
-/// spike: a first-order Markov chain along each trial, the same on every trial.
-struct binary_chain {
-    std::vector<double> p;  // spike probability after no spike
-    double refractory = 0;
-    std::vector<double> q;  // probability of a spike in bin t across trials
-
-    binary_chain(std::vector<double> p_, double refractory_): p(std::move(p_)), refractory(refractory_), q(p.size()) {
-        double previous = 0;  // no spike before the trial starts
-        for (std::size_t t = 0; t < p.size(); ++t) {
-            q[t] = previous * after_spike(t) + (1 - previous) * p[t];
-            previous = q[t];
-        }
-    }
-    double after_spike(std::size_t t) const { return p[t] * (1 - refractory); }
-    /// Entropy of letter t given letter t-1, averaged over trials.
-    double conditional_entropy(std::size_t t) const {
-        if (t == 0) return binary_entropy(q[0]);
-        return q[t - 1] * binary_entropy(after_spike(t)) + (1 - q[t - 1]) * binary_entropy(p[t]);
-    }
-};
-
-/// Entropy (bits) of the words of L letters at position t across trials, averaged over positions
-/// (the chain rule along a Markov chain: H(X_t) + sum of H(X_j | X_j-1)).
-double chain_noise_word_entropy(const binary_chain& c, int L) {
-    const std::size_t positions = c.p.size() - static_cast<std::size_t>(L) + 1;
-    double h = 0;
-    for (std::size_t t = 0; t < positions; ++t) {
-        h += binary_entropy(c.q[t]);
-        for (int j = 1; j < L; ++j) h += c.conditional_entropy(t + static_cast<std::size_t>(j));
-    }
-    return h / static_cast<double>(positions);
-}
-
-/// Entropy (bits) of the words of L letters pooled over start positions: the mixture over t of
-/// the chain's word distributions at t, enumerated word by word.
-double chain_pooled_word_entropy(const binary_chain& c, int L) {
-    const std::size_t positions = c.p.size() - static_cast<std::size_t>(L) + 1;
-    const std::size_t words = std::size_t{1} << L;
-    std::vector<double> prob(words, 0.0), one(words);
-    std::vector<bool> ends_in_spike(words);
-    for (std::size_t t = 0; t < positions; ++t) {
-        // Grow words letter by letter; word w's last letter is its lowest bit.
-        one[0] = 1 - c.q[t];
-        one[1] = c.q[t];
-        std::size_t filled = 2;
-        for (int j = 1; j < L; ++j) {
-            const std::size_t bin = t + static_cast<std::size_t>(j);
-            for (std::size_t w = filled; w-- > 0;) {
-                const double fire = (w & 1) ? c.after_spike(bin) : c.p[bin];
-                one[2 * w + 1] = one[w] * fire;
-                one[2 * w] = one[w] * (1 - fire);
-            }
-            filled *= 2;
-        }
-        for (std::size_t w = 0; w < words; ++w) prob[w] += one[w];
-    }
-    double h = 0;
-    for (double x: prob) {
-        const double q = x / static_cast<double>(positions);
-        if (q > 0) h -= q * std::log2(q);
-    }
-    return h;
-}
-
-/// The entropy rate of the pooled letters: over start positions the next letter depends on the
-/// trial's past only through the previous letter (p_t is drawn independently of earlier bins), so
-/// the pooled process is the Markov chain with the average transition probabilities.
-double chain_pooled_entropy_rate(const binary_chain& c) {
-    double spikes = 0, silences = 0, fire_after_spike = 0, fire_after_silence = 0;
-    for (std::size_t t = 1; t < c.p.size(); ++t) {
-        spikes += c.q[t - 1];
-        silences += 1 - c.q[t - 1];
-        fire_after_spike += c.q[t - 1] * c.after_spike(t);
-        fire_after_silence += (1 - c.q[t - 1]) * c.p[t];
-    }
-    const double n = spikes + silences;
-    return (spikes > 0 ? spikes / n * binary_entropy(fire_after_spike / spikes) : 0.0) +
-           (silences > 0 ? silences / n * binary_entropy(fire_after_silence / silences) : 0.0);
-}
-
 double poisson_entropy_bits(double mean, std::vector<double>* pmf_out, std::size_t n) {
     std::vector<double> pmf(n, 0.0);
     double p = std::exp(-mean);
@@ -190,40 +111,37 @@ synthetic_recording make_frozen_bins(const frozen_bins_spec& spec, const unit_re
         std::vector<double> p(bins);
         // Gamma-distributed gain with mean 1 and coefficient of variation m (shape 1/m^2).
         for (auto& x: p) x = m > 0 ? std::min(1.0, mean_p * m * m * std::exp(log_gamma_variate(1 / (m * m), rng))) : mean_p;
-        const binary_chain chain(p, spec.refractory);
-        auto& spikes = out.rec.units[u].spike_times;
-        for (std::size_t k = 0; k < n_trials; ++k) {
-            bool fired = false;
-            for (std::size_t b = 0; b < bins; ++b) {
-                fired = rng.uniform() < (fired ? chain.after_spike(b) : p[b]);
-                if (fired) {
-                    // Keep the spike clear of the bin edges so rounding cannot move it to a neighbour.
-                    const double within = 0.05 + 0.9 * rng.uniform();
-                    spikes.push_back(out.rec.trial_start[k] + (static_cast<double>(b) + within) * dt);
-                }
-            }
-        }
-        unit_truth truth;
+        std::vector<double> after_spike(bins);
+        for (std::size_t t = 0; t < bins; ++t) after_spike[t] = p[t] * (1 - spec.refractory);
+        const binary_chain chain(std::move(p), std::move(after_spike));
+        sample_chain(chain, dt, out.rec.trial_start, rng, out.rec.units[u].spike_times);
+        unit_truth truth = chain_truth(chain, spec.bin_ms, 8);
         truth.unit = out.rec.units[u].id;
-        double noise = 0, mean_q = 0;
-        for (std::size_t t = 1; t < bins; ++t) noise += chain.conditional_entropy(t);
-        noise /= static_cast<double>(bins - 1);
-        for (double x: chain.q) mean_q += x;
-        mean_q /= static_cast<double>(bins);
-        const double total = chain_pooled_entropy_rate(chain);
-        truth.values["bin_ms"] = spec.bin_ms;
-        truth.values["mean_rate_hz"] = mean_q / dt;
-        truth.values["total_entropy_rate_bits_per_s"] = total / dt;
-        truth.values["noise_entropy_rate_bits_per_s"] = noise / dt;
-        truth.values["info_rate_bits_per_s"] = (total - noise) / dt;
-        truth.values["bits_per_spike"] = (total - noise) / mean_q;
-        for (int L = 1; L <= 8 && static_cast<std::size_t>(L) < bins; ++L) {
-            const double total_L = chain_pooled_word_entropy(chain, L);
-            const double noise_L = chain_noise_word_entropy(chain, L);
-            truth.by_letters["total_entropy_bits"].push_back(total_L);
-            truth.by_letters["noise_entropy_bits"].push_back(noise_L);
-            truth.by_letters["info_bits"].push_back(total_L - noise_L);
+        out.truth.push_back(std::move(truth));
+        unit_done(out.rec, u, ready);
+    }
+    finish(out.rec);
+    return out;
+}
+
+synthetic_recording make_patterns(const patterns_spec& spec, const unit_ready& ready) {
+    check_spec(spec);
+    random_stream rng(derive_seed(spec.seed, {4}));
+    const seconds dt = spec.bin_ms / 1000.0;
+    const std::size_t bins = whole_bins(spec.session.duration, dt);
+    synthetic_recording out = start_recording("patterns", spec.session, spec.rates_hz.size(), spec.session.trials, rng);
+    for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) {
+        const double p = spec.rates_hz[u] * dt;
+        std::vector<double> after_silence(bins), after_spike(bins);
+        for (std::size_t t = 0; t < bins; ++t) {
+            after_spike[t] = rng.uniform() < spec.bursty_fraction ? spec.after_spike_bursty : spec.after_spike_refractory;
+            // Keeps P(spike) = p in bin t when it was p in bin t-1: p = p a + (1 - p) b.
+            after_silence[t] = p * (1 - after_spike[t]) / (1 - p);
         }
+        const binary_chain chain(std::move(after_silence), std::move(after_spike), p);
+        sample_chain(chain, dt, out.rec.trial_start, rng, out.rec.units[u].spike_times);
+        unit_truth truth = chain_truth(chain, spec.bin_ms, patterns_spec::answer_letters);
+        truth.unit = out.rec.units[u].id;
         out.truth.push_back(std::move(truth));
         unit_done(out.rec, u, ready);
     }

@@ -60,6 +60,19 @@ void check_unit_memory(double spikes, const session_shape& s, std::size_t trials
     }
 }
 
+/// A session of letters `bin_ms` wide (frozen-bins, patterns): the width, the session, and at least
+/// the 2 bins the answers need; returns the bins per trial.
+double check_binned_session(const session_shape& session, double bin_ms) {
+    require_number(bin_ms, bin_ms > 0, "--bin-ms", "a positive width in ms");
+    check_session(session, session.trials, bin_ms, "--bin-ms");
+    const double bins = std::floor(session.duration / (bin_ms / 1000) + 1e-9);
+    if (bins < 2) {
+        throw usage_error("--bin-ms " + format_number(bin_ms) + ": --duration-s " + format_number(session.duration) +
+                          " holds " + format_number(bins) + (bins == 1 ? " bin" : " bins") + ", and the answers need at least 2");
+    }
+    return bins;
+}
+
 double per_unit_value(const std::vector<double>& values, std::size_t unit) { return values.size() == 1 ? values[0] : values[unit]; }
 
 void check_per_unit(const std::vector<double>& values, std::size_t units, const char* option) {
@@ -72,14 +85,8 @@ void check_per_unit(const std::vector<double>& values, std::size_t units, const 
 }  // namespace
 
 void check_spec(const frozen_bins_spec& spec) {
-    require_number(spec.bin_ms, spec.bin_ms > 0, "--bin-ms", "a positive width in ms");
+    const double bins = check_binned_session(spec.session, spec.bin_ms);
     const seconds dt = spec.bin_ms / 1000;
-    check_session(spec.session, spec.session.trials, spec.bin_ms, "--bin-ms");
-    const double bins = std::floor(spec.session.duration / dt + 1e-9);
-    if (bins < 2) {
-        throw usage_error("--bin-ms " + format_number(spec.bin_ms) + ": --duration-s " + format_number(spec.session.duration) +
-                          " holds " + format_number(bins) + (bins == 1 ? " bin" : " bins") + ", and the answers need at least 2");
-    }
     if (spec.rates_hz.empty()) throw usage_error("--rate-hz: give at least one rate");
     check_per_unit(spec.modulations, spec.rates_hz.size(), "--modulation");
     require_number(spec.refractory, spec.refractory >= 0 && spec.refractory <= 1, "--refractory", "a fraction in [0, 1]");
@@ -95,6 +102,30 @@ void check_spec(const frozen_bins_spec& spec) {
     }
     // The bins' probabilities and the chain's (two doubles per bin) beside the spikes.
     check_unit_memory(most * bins * static_cast<double>(spec.session.trials), spec.session, spec.session.trials, 16 * bins);
+}
+
+void check_spec(const patterns_spec& spec) {
+    const double bins = check_binned_session(spec.session, spec.bin_ms);
+    const seconds dt = spec.bin_ms / 1000;
+    if (spec.rates_hz.empty()) throw usage_error("--rate-hz: give at least one rate");
+    require_number(spec.bursty_fraction, spec.bursty_fraction >= 0 && spec.bursty_fraction <= 1, "--bursty-fraction",
+                   "a fraction in [0, 1]");
+    require_number(spec.after_spike_bursty, spec.after_spike_bursty >= 0 && spec.after_spike_bursty <= 1,
+                   "--after-spike-bursty", "a probability in [0, 1]");
+    require_number(spec.after_spike_refractory, spec.after_spike_refractory >= 0 && spec.after_spike_refractory <= 1,
+                   "--after-spike-refractory", "a probability in [0, 1]");
+    double most = 0;
+    for (const double rate: spec.rates_hz) {
+        const double p = rate * dt;
+        // p <= 0.5 keeps the probability after no spike, p (1 - a) / (1 - p), at most 1.
+        if (!std::isfinite(rate) || !(p > 0) || p > 0.5) {
+            throw usage_error("--rate-hz " + format_number(rate) + " with --bin-ms " + format_number(spec.bin_ms) +
+                              " gives a spike probability per bin outside (0, 0.5]");
+        }
+        most = std::max(most, p);
+    }
+    // The chain's three doubles per bin beside the spikes.
+    check_unit_memory(most * bins * static_cast<double>(spec.session.trials), spec.session, spec.session.trials, 24 * bins);
 }
 
 void check_spec(const poisson_spec& spec) {

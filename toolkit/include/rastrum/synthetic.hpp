@@ -36,6 +36,25 @@ struct frozen_bins_spec {
     std::uint64_t seed = 1;
 };
 
+/// Information carried only by spike patterns: every bin of `bin_ms` fires with the same probability
+/// p = rate dt (so single letters carry exactly no information), and a frozen stimulus decides bin by
+/// bin, independently with probability `bursty_fraction`, whether a spike in the bin before makes
+/// this one more likely (spike probability `after_spike_bursty`) or less (`after_spike_refractory`).
+/// After no spike the probability is p (1 - a) / (1 - p), with a the after-spike value, which keeps
+/// the marginal at p in every bin; the bin before the first fires with probability p. The letters
+/// are a first-order Markov chain along each trial, and the exact answers give the information of
+/// words of 1..answer_letters letters and at infinite word length (the chain's entropy rates).
+struct patterns_spec {
+    static constexpr int answer_letters = 12;
+    session_shape session;
+    double bin_ms = 2.0;
+    std::vector<double> rates_hz{25.0};  // one unit per entry
+    double bursty_fraction = 0.5;        // 0..1
+    double after_spike_bursty = 0.5;     // 0..1
+    double after_spike_refractory = 0;   // 0..1
+    std::uint64_t seed = 1;
+};
+
 /// Inhomogeneous Poisson firing with a frozen rate r(t) = rate (1 + modulation g(t)), clipped at 0,
 /// where g is a smooth random signal (Gaussian noise low-passed with time constant
 /// `correlation_ms`, scaled to unit variance), the same on every trial; held constant over steps of
@@ -85,10 +104,12 @@ using unit_ready = std::function<void(recording& rec, std::size_t u)>;
 /// session too long for its spike times to resolve the finest time scale (--duration-s 1e308), and
 /// one unit's spikes beyond the default memory bound (memory_bound.hpp).
 void check_spec(const frozen_bins_spec& spec);
+void check_spec(const patterns_spec& spec);
 void check_spec(const poisson_spec& spec);
 void check_spec(const conditions_spec& spec);
 
 synthetic_recording make_frozen_bins(const frozen_bins_spec& spec, const unit_ready& ready = {});
+synthetic_recording make_patterns(const patterns_spec& spec, const unit_ready& ready = {});
 synthetic_recording make_poisson(const poisson_spec& spec, const unit_ready& ready = {});
 synthetic_recording make_conditions(const conditions_spec& spec, const unit_ready& ready = {});
 
