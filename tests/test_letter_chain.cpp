@@ -138,3 +138,13 @@ TEST(letter_chain, silence_and_the_enumeration_limit) {
     EXPECT_DOUBLE_EQ(e.total, 0.0);
     EXPECT_DOUBLE_EQ(e.noise, 0.0);
 }
+
+// The empirical-Bayes weight by hand: bins at 0 of 100 and 50 of 100 spikes have pooled mean 1/4,
+// observed variance (1/16 + 1/16) / 2, binomial part (3/16) / 100; so the between-bin variance is
+// 0.060625 and the weight (3/16) / 0.060625 - 1 (method of moments for a beta-binomial, common
+// practice). Bins that differ by less than their sampling noise get an infinite weight.
+TEST(letter_chain, empirical_weight_by_hand) {
+    EXPECT_NEAR(letter_chain::empirical_weight({0, 50}, {100, 100}), 0.1875 / 0.060625 - 1, 1e-12);
+    EXPECT_TRUE(std::isinf(letter_chain::empirical_weight({1, 3}, {10, 10})));
+    EXPECT_TRUE(std::isinf(letter_chain::empirical_weight({5}, {10})));
+}

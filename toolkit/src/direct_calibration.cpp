@@ -28,10 +28,9 @@ namespace {
 constexpr std::uint64_t surrogate_draw_tag = 0xca11b7a7e0ULL;
 constexpr std::uint64_t surrogate_split_tag = 0xca11b7a7e1ULL;
 
-/// One surrogate data set and its estimate, grown in step with the record's.
+/// One surrogate's estimate, grown in step with the record's; its letters and buffers are the
+/// thread's (direct_workspace::parts::surrogates), kept from record to record.
 struct surrogate {
-    sparse_letters letters;
-    direct_workspace workspace;
     direct_settings settings;
     std::unique_ptr<direct_lengths> lengths;
 };
@@ -44,6 +43,39 @@ double mean_rate_hz(const sparse_letters& letters, seconds bin_width) {
 /// The upper half of lengths letters_min..b, as the sampling rule fits them.
 std::pair<int, int> upper_half(int b, int letters_min) { return {std::max(letters_min, (b + 1) / 2), b}; }
 
+/// The fit range to report (notes/methods.md, "Calibration"). The longest range within tolerance
+/// sees the most of the correlations between bins that the data can resolve; any range within
+/// tolerance whose corrected rate agrees with it (within 1.96 combined errors) has found the same
+/// information, and of those the one with the smallest error is reported, extrapolating (ending
+/// past 1 letter) whenever such a range is within tolerance. When no range is within tolerance,
+/// the one with the smallest error.
+std::size_t choose_fit(const std::vector<calibrated_fit>& by_fit) {
+    std::size_t longest = by_fit.size();
+    for (std::size_t i = 0; i < by_fit.size(); ++i) {
+        if (by_fit[i].within_tolerance) longest = i;
+    }
+    std::size_t best = 0;
+    if (longest == by_fit.size()) {
+        for (std::size_t i = 1; i < by_fit.size(); ++i) {
+            if (by_fit[i].error < by_fit[best].error) best = i;
+        }
+        return best;
+    }
+    const calibrated_fit& reference = by_fit[longest];
+    auto agrees = [&](const calibrated_fit& c) {
+        const double gap = (c.rate - c.bias) - (reference.rate - reference.bias);
+        return c.within_tolerance && std::abs(gap) <= 1.96 * std::hypot(c.error, reference.error);
+    };
+    const bool extrapolating = std::any_of(by_fit.begin(), by_fit.end(), [&](const calibrated_fit& c) {
+        return agrees(c) && c.fit.second > 1;
+    });
+    best = longest;
+    for (std::size_t i = 0; i < by_fit.size(); ++i) {
+        if (agrees(by_fit[i]) && (!extrapolating || by_fit[i].fit.second > 1) && by_fit[i].error < by_fit[best].error) best = i;
+    }
+    return best;
+}
+
 }  // namespace
 
 direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_width, const direct_settings& settings,
@@ -51,15 +83,17 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
     direct_lengths record(letters, bin_width, settings, workspace);
     const letter_chain model(letters);
     const unsigned k_count = settings.surrogates;
+    auto& kept = workspace.inside().surrogates;
+    if (kept.size() < k_count) kept.resize(k_count);
     std::vector<surrogate> surrogates(k_count);
     for (unsigned k = 0; k < k_count; ++k) {
         surrogate& s = surrogates[k];
-        model.draw(letters.trials, derive_seed(settings.seed, {surrogate_draw_tag, k}), s.letters);
+        model.draw(letters.trials, derive_seed(settings.seed, {surrogate_draw_tag, k}), kept[k].letters);
         s.settings = settings;
         s.settings.surrogates = 0;
         s.settings.splits = std::min(settings.surrogate_splits, settings.splits);
         s.settings.seed = derive_seed(settings.seed, {surrogate_split_tag, k});
-        s.lengths = std::make_unique<direct_lengths>(s.letters, bin_width, s.settings, s.workspace);
+        s.lengths = std::make_unique<direct_lengths>(kept[k].letters, bin_width, s.settings, *kept[k].workspace);
     }
 
     // The longest length the calibration can judge: the model's word entropies are enumerated.
@@ -74,7 +108,6 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
     std::vector<std::vector<double>> sur_total(k_count), sur_noise(k_count);
     rate_calibration cal;
     cal.surrogates = k_count;
-    int failed_in_a_row = 0;
     length_stop stop = length_stop::letters_max;
 
     auto examine = [&](std::pair<int, int> fit) {
@@ -118,9 +151,8 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
             }
             continue;
         }
-        failed_in_a_row = examine(upper_half(L, settings.letters_min)) ? 0 : failed_in_a_row + 1;
-        // Errors grow with word length; two lengths in a row beyond the tolerance end the search.
-        if (failed_in_a_row >= 2 && !settings.every_length) {
+        // Errors grow with word length: the first range beyond the tolerance ends the search.
+        if (!examine(upper_half(L, settings.letters_min)) && !settings.every_length) {
             stop = length_stop::calibration;
             break;
         }
@@ -130,17 +162,7 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
         }
     }
 
-    // The longest range within tolerance; when none is, the one with the smallest error.
-    cal.chosen = 0;
-    bool any = false;
-    for (std::size_t i = 0; i < cal.by_fit.size(); ++i) {
-        if (cal.by_fit[i].within_tolerance) {
-            cal.chosen = i;
-            any = true;
-        } else if (!any && cal.by_fit[i].error < cal.by_fit[cal.chosen].error) {
-            cal.chosen = i;
-        }
-    }
+    cal.chosen = choose_fit(cal.by_fit);
     const calibrated_fit& chosen = cal.by_fit[cal.chosen];
     cal.uncertain = !chosen.within_tolerance;
     cal.tolerance = calibration_tolerance(chosen.rate - chosen.bias, settings.error_tolerance,

@@ -11,6 +11,7 @@
 
 #include <array>
 #include <cstddef>
+#include <memory>
 #include <vector>
 
 namespace rastrum {
@@ -64,6 +65,12 @@ struct direct_workspace::parts {
     trial_rotator rotator;
     sparse_letters rotated;
     std::vector<std::size_t> offsets;
+    // For the calibration: each surrogate's letters and buffers.
+    struct surrogate_parts {
+        sparse_letters letters;
+        std::unique_ptr<direct_workspace> workspace = std::make_unique<direct_workspace>();
+    };
+    std::vector<surrogate_parts> surrogates;
 };
 
 }  // namespace rastrum

@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 namespace rastrum {
 
@@ -19,7 +20,7 @@ double entropy_bits(const double* p, std::size_t n) {
 
 }  // namespace
 
-letter_chain::letter_chain(const sparse_letters& letters, double pseudo_trials)
+letter_chain::letter_chain(const sparse_letters& letters, std::optional<double> pseudo_trials)
     : bins_(letters.bins), alphabet_(std::max<std::size_t>(2, std::size_t{letters.largest} + 1)) {
     if (letters.trials == 0 || letters.bins == 0) throw internal_error("letter_chain needs at least one trial and one bin");
     const std::size_t A = alphabet_;
@@ -70,16 +71,39 @@ letter_chain::letter_chain(const sparse_letters& letters, double pseudo_trials)
         if (n == 0) std::copy_n(pooled.begin() + static_cast<std::ptrdiff_t>((1 - s) * A), A, pooled.begin() + static_cast<std::ptrdiff_t>(s * A));
     }
 
+    // Each state's weight of the pooled distribution, from its bins' spike frequencies.
+    double weight[2];
+    for (int s = 0; s < 2; ++s) {
+        if (pseudo_trials) {
+            weight[s] = *pseudo_trials;
+            continue;
+        }
+        std::vector<double> spikes, trials;
+        for (std::size_t t = 0; t < bins_; ++t) {
+            const double* c = counts.data() + (t * 2 + static_cast<std::size_t>(s)) * A;
+            double n = 0;
+            for (std::size_t a = 0; a < A; ++a) n += c[a];
+            if (n > 0) {
+                spikes.push_back(n - c[0]);
+                trials.push_back(n);
+            }
+        }
+        weight[s] = empirical_weight(spikes, trials);
+    }
+
     p_.assign(bins_ * 2 * A, 0.0);
     for (std::size_t t = 0; t < bins_; ++t) {
         for (int s = 0; s < 2; ++s) {
+            const double pseudo_trials = weight[s];
             const double* c = counts.data() + (t * 2 + static_cast<std::size_t>(s)) * A;
             double n = 0;
             for (std::size_t a = 0; a < A; ++a) n += c[a];
             double* p = p_.data() + (t * 2 + static_cast<std::size_t>(s)) * A;
             // A state no trial was in at this bin (and no pseudo-trials) takes the pooled distribution.
             for (std::size_t a = 0; a < A; ++a) {
-                p[a] = n + pseudo_trials > 0 ? (c[a] + pseudo_trials * pooled[s * A + a]) / (n + pseudo_trials) : pooled[s * A + a];
+                p[a] = std::isinf(pseudo_trials) || n + pseudo_trials <= 0
+                           ? pooled[s * A + a]
+                           : (c[a] + pseudo_trials * pooled[s * A + a]) / (n + pseudo_trials);
             }
         }
     }
@@ -90,6 +114,26 @@ letter_chain::letter_chain(const sparse_letters& letters, double pseudo_trials)
         spiking_[t] = (1 - before) * (1 - distribution(t, 0)[0]) + before * (1 - distribution(t, 1)[0]);
         before = spiking_[t];
     }
+}
+
+double letter_chain::empirical_weight(const std::vector<double>& spikes, const std::vector<double>& trials) {
+    double k = 0, n = 0;
+    for (std::size_t t = 0; t < spikes.size(); ++t) {
+        k += spikes[t];
+        n += trials[t];
+    }
+    if (spikes.size() < 2 || n <= 0) return std::numeric_limits<double>::infinity();
+    const double m = k / n;
+    if (m <= 0 || m >= 1) return std::numeric_limits<double>::infinity();
+    double observed = 0, binomial = 0;
+    for (std::size_t t = 0; t < spikes.size(); ++t) {
+        const double f = spikes[t] / trials[t];
+        observed += (f - m) * (f - m);
+        binomial += m * (1 - m) / trials[t];
+    }
+    const double between = (observed - binomial) / static_cast<double>(spikes.size());
+    if (between <= 0) return std::numeric_limits<double>::infinity();
+    return std::max(0.0, m * (1 - m) / between - 1);
 }
 
 int letter_chain::longest_enumerable() const {

@@ -15,6 +15,7 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <optional>
 #include <vector>
 
 namespace rastrum {
@@ -22,11 +23,21 @@ namespace rastrum {
 class letter_chain {
 public:
     /// Fits the model to `letters` (at least 1 trial and 1 bin). Each bin's two distributions are
-    /// the trials' letter frequencies after a silent and after a spiking bin, each with
-    /// `pseudo_trials` trials' worth of weight drawn toward the same distribution pooled over all
-    /// bins (so that a bin where the previous one spiked in two trials does not get a distribution
-    /// made of those two alone).
-    letter_chain(const sparse_letters& letters, double pseudo_trials = 1.0);
+    /// the trials' letter frequencies after a silent and after a spiking bin, drawn toward the same
+    /// distribution pooled over all bins with the weight of `pseudo_trials` trials. By default that
+    /// weight is estimated, per state, from the data (empirical Bayes, below), so that the model's
+    /// bin-to-bin differences are those the data show beyond their sampling noise: a model of raw
+    /// frequencies would carry more information than the truth, and surrogates drawn from it would
+    /// misjudge the estimator's bias (notes/methods.md, "Calibration").
+    explicit letter_chain(const sparse_letters& letters, std::optional<double> pseudo_trials = std::nullopt);
+
+    /// The estimated weight: spike probabilities across bins taken as Beta-distributed with the pooled
+    /// mean m, the method of moments gives their variance t2 as the observed variance of the bins'
+    /// frequencies less the binomial part m (1 - m) mean(1/n), and the weight m (1 - m) / t2 - 1
+    /// (a beta-binomial posterior mean; e.g. Casella 1985, Am. Stat. 39:83, from memory). No
+    /// variance beyond the sampling noise gives an infinite weight: every bin takes the pooled
+    /// distribution.
+    static double empirical_weight(const std::vector<double>& spikes, const std::vector<double>& trials);
 
     std::size_t bins() const { return bins_; }
     std::size_t alphabet() const { return alphabet_; }
