@@ -48,6 +48,12 @@ TEST(synth_refusals, repeated_labels_and_impossible_parameters_are_usage_errors_
     expect_refused(folder, "poisson --resolution-ms 1e-300", "--resolution-ms 1e-300");
     // One 2 ms bin in 3 ms: the answers divide by the bins after the first.
     expect_refused(folder, "frozen-bins --duration-s 0.003", "--bin-ms 2: --duration-s 0.003 holds 1 bin");
+    expect_refused(folder, "patterns --duration-s 0.003", "--bin-ms 2: --duration-s 0.003 holds 1 bin");
+    // 300 Hz in 2 ms bins is p = 0.6: the probability after no spike, p (1 - a) / (1 - p), would pass 1.
+    expect_refused(folder, "patterns --rate-hz 300", "--rate-hz 300 with --bin-ms 2");
+    expect_refused(folder, "patterns --bursty-fraction 1.5", "--bursty-fraction");
+    expect_refused(folder, "patterns --after-spike-bursty -0.1", "--after-spike-bursty");
+    expect_refused(folder, "patterns --after-spike-refractory 2", "--after-spike-refractory");
     expect_refused(folder, "conditions --means 1000,2,3,4", "--means");
     expect_refused(folder, "conditions --gap-s -1", "--gap-s");
     expect_refused(folder, "frozen-bins --rate-hz 20,30 --modulation 1,2,3", "--modulation");
@@ -65,6 +71,7 @@ TEST(synth_refusals, the_answers_describe_exactly_the_file_written) {
     const std::vector<std::pair<std::string, bool>> kinds{
         {"frozen-bins --trials 12 --duration-s 0.5 --rate-hz 20,30,40", true},
         {"poisson --trials 9 --duration-s 0.4 --rate-hz 15,25", true},
+        {"patterns --trials 11 --duration-s 0.3 --rate-hz 25,40", true},
         {"conditions --labels up,down,left --trials-per-condition 7 --duration-s 0.3 --means 1,2,3 --means 4,4,4", true},
         {"conditions --labels a,a,b,c --trials-per-condition 5", false}};
     for (std::size_t i = 0; i < kinds.size(); ++i) {

@@ -105,6 +105,10 @@ DESIGNS = [
                   "info_rate_bits_per_s", ["patterns", "--trials", "60"] + SHORT, letters="1-12"),
     direct_design("patterns, 400 trials", ["patterns", "--trials", "400", "--duration-s", "4"], [],
                   "info_rate_bits_per_s", ["patterns", "--trials", "80"] + SHORT, letters="1-12"),
+    # The same unit with the fit range given (--fit-letters 2-6): what the estimator sees when the
+    # word lengths are not chosen by the sampling rule.
+    direct_design("patterns, 200 trials, fit 2-6", ["patterns", "--trials", "200", "--duration-s", "4"],
+                  ["--fit-letters", "2-6"], "info_rate_bits_per_s", ["patterns", "--trials", "60"] + SHORT, letters="1-12"),
     # Poisson spike counts in four conditions (answers: count_info_bits).
     stiminfo_design("counts", ["--means", "2,4,6,9", "--trials-per-condition", "30", "--duration-s", "0.5"],
                     ["--window-ms", "0:500", "--code", "count"],
@@ -291,7 +295,8 @@ def table(summaries, command):
     for s in summaries:
         for i, r in enumerate(s["rows"]):
             unit = r["unit"]
-            lines.append(f"| {s['design']} | {r['quantity']} ({unit}) | {r['truth']:.4g} | {r['n']} | "
+            truth = 0.0 if abs(r["truth"]) < 1e-9 else r["truth"]  # enumeration's rounding, where the truth is 0
+            lines.append(f"| {s['design']} | {r['quantity']} ({unit}) | {truth:.4g} | {r['n']} | "
                          f"{fmt(r['coverage'], '{:.0%}')} | {fmt(r['half_width_over_rmse'], '{:.2f}')} | "
                          f"{r['bias']:+.3g} | {fmt(r['bias_pct'], '{:+.1f}%')} | {r['rmse']:.3g} | "
                          f"{fmt(r['excludes_zero'], '{:.0%}')} | "
@@ -336,8 +341,12 @@ def main():
     if unknown:
         sys.exit(f"coverage.py: unknown design(s) {', '.join(sorted(unknown))}; "
                  f"choose from {', '.join(slug(d['name']) for d in DESIGNS)}")
-    command = "tests/validation/coverage.py build/rastrum " + " ".join(
-        x for x in sys.argv[2:] if not x.startswith("--out"))
+    shown, skip = [], False
+    for x in sys.argv[2:]:  # the command as run, without where the table was written
+        if not skip and not x.startswith("--out"):
+            shown.append(x)
+        skip = x == "--out"
+    command = "tests/validation/coverage.py build/rastrum " + " ".join(shown)
     summaries = []
     with tempfile.TemporaryDirectory() as folder, concurrent.futures.ThreadPoolExecutor(a.jobs) as pool:
         for d in designs:
