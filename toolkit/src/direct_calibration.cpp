@@ -13,13 +13,19 @@
 
 namespace rastrum {
 
+namespace {
+// The share of the measured bias counted as uncertain: the bias is the estimator's at the fitted
+// model, not at the truth (notes/methods-calibration.md; its size from notes/validation.md).
+constexpr double bias_allowance = 0.25;
+}  // namespace
+
 double calibration_tolerance(double rate, double relative, double floor_bits_per_spike, double mean_rate_hz) {
     return std::max(relative * std::abs(rate), floor_bits_per_spike * mean_rate_hz);
 }
 
 double calibrated_error(double bias, double spread, unsigned surrogates) {
     const double k = std::max(1u, surrogates);
-    return std::sqrt(spread * spread * (1 + 1 / k) + 0.25 * bias * bias);
+    return std::sqrt(spread * spread * (1 + 1 / k) + bias_allowance * bias_allowance * bias * bias);
 }
 
 namespace {
@@ -43,19 +49,20 @@ double mean_rate_hz(const sparse_letters& letters, seconds bin_width) {
 /// The upper half of lengths letters_min..b, as the sampling rule fits them.
 std::pair<int, int> upper_half(int b, int letters_min) { return {std::max(letters_min, (b + 1) / 2), b}; }
 
-/// The fit range to report (notes/methods.md, "Calibration"). The longest range within tolerance
-/// sees the most of the correlations between bins that the data can resolve; any range within
-/// tolerance whose corrected rate agrees with it (within 1.96 combined errors) has found the same
-/// information, and of those the one with the smallest error is reported, extrapolating (ending
-/// past 1 letter) whenever such a range is within tolerance. When no range is within tolerance,
-/// the one with the smallest error.
+/// The fit range to report (notes/methods-calibration.md). The longest range within tolerance sees
+/// the most of the correlations between bins that the data can resolve; a range within tolerance
+/// whose corrected rate agrees with it (within 1.96 combined errors) has found the same
+/// information. Of those the shortest that extrapolates (ends past the shortest length) is
+/// reported, or the shortest when none does: chosen by position, not by the smallest error, whose
+/// estimate from a few surrogates is itself noisy (picking the smallest picks an underestimate).
+/// When no range is within tolerance, the one with the smallest error.
 std::size_t choose_fit(const std::vector<calibrated_fit>& by_fit) {
     std::size_t longest = by_fit.size();
     for (std::size_t i = 0; i < by_fit.size(); ++i) {
         if (by_fit[i].within_tolerance) longest = i;
     }
-    std::size_t best = 0;
     if (longest == by_fit.size()) {
+        std::size_t best = 0;
         for (std::size_t i = 1; i < by_fit.size(); ++i) {
             if (by_fit[i].error < by_fit[best].error) best = i;
         }
@@ -66,14 +73,13 @@ std::size_t choose_fit(const std::vector<calibrated_fit>& by_fit) {
         const double gap = (c.rate - c.bias) - (reference.rate - reference.bias);
         return c.within_tolerance && std::abs(gap) <= 1.96 * std::hypot(c.error, reference.error);
     };
-    const bool extrapolating = std::any_of(by_fit.begin(), by_fit.end(), [&](const calibrated_fit& c) {
-        return agrees(c) && c.fit.second > 1;
-    });
-    best = longest;
     for (std::size_t i = 0; i < by_fit.size(); ++i) {
-        if (agrees(by_fit[i]) && (!extrapolating || by_fit[i].fit.second > 1) && by_fit[i].error < by_fit[best].error) best = i;
+        if (agrees(by_fit[i]) && by_fit[i].fit.first < by_fit[i].fit.second) return i;
     }
-    return best;
+    for (std::size_t i = 0; i < by_fit.size(); ++i) {
+        if (agrees(by_fit[i])) return i;
+    }
+    return longest;
 }
 
 }  // namespace

@@ -62,9 +62,11 @@ struct direct_settings {
     /// per record; 0 turns it off. With it, the calibration chooses the fit range (unless
     /// fit_letters is given) and the rate, its standard error and interval are the calibrated ones.
     unsigned surrogates = 0;
-    /// Random splits of the trials in each surrogate's estimate: the estimator's mean over random
-    /// splits does not depend on their number, only its spread does, a little (notes/methods.md).
-    unsigned surrogate_splits = 2;
+    /// Random splits of the trials in each surrogate's estimate (at most `splits`). The estimator's
+    /// mean over random splits does not depend on their number, but its spread does: with 2 splits
+    /// instead of 8 the surrogates' spread was 1.6 times the record's (notes/methods-calibration.md),
+    /// so by default they use as many as the record.
+    unsigned surrogate_splits = 8;
     /// A calibrated error within this fraction of the rate, or within error_floor_bits_per_spike
     /// times the mean firing rate, is within tolerance.
     double error_tolerance = 0.05;
