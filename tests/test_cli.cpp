@@ -38,7 +38,8 @@ TEST(cli, help_documents_commands_options_and_exit_codes) {
     const auto direct = run_rastrum("direct --help");
     EXPECT_EQ(direct.exit_code, 0);
     for (const char* option: {"--unit", "--stimulus", "--bin-ms", "--letters", "--binary", "--fit-letters", "--seed",
-                              "--threads", "--json", "--csv", "--bias-tolerance", "--subset-estimator", "--splits"}) {
+                              "--threads", "--json", "--csv", "--bias-tolerance", "--subset-estimator", "--splits",
+                              "--surrogates", "--surrogate-splits", "--error-tolerance", "--error-floor"}) {
         EXPECT_NE(direct.out.find(option), std::string::npos) << option;
     }
     EXPECT_NE(direct.out.find("4 the data cannot support"), std::string::npos);
@@ -434,4 +435,44 @@ TEST(cli, progress_bar_on_a_terminal) {
     EXPECT_NE(shown.find("4/4"), std::string::npos) << shown;
     const std::string quiet = on_terminal("--quiet");
     EXPECT_EQ(quiet.find("direct ["), std::string::npos) << quiet;
+}
+
+// The calibration from the command line: the record says where its fit came from, keeps the plain
+// estimate and every range examined, and the parameters name the calibration's settings
+// (notes/methods-calibration.md). A unit whose information lies only in spike patterns (synth
+// patterns: 1-letter words carry exactly none) is found, with an interval that excludes 0.
+TEST(cli, direct_calibration_reports_its_ranges_and_the_plain_estimate) {
+    const std::string folder = fresh_folder("cli-calibration");
+    ASSERT_EQ(run_rastrum("synth patterns --trials 200 --duration-s 4 --out " + folder + "/p.h5").exit_code, 0);
+    const json answers = json::parse(read_file(folder + "/p.answers.json"));
+    const double exact = answers["units"][0]["info_rate_bits_per_s"].get<double>();
+    const auto r = run_rastrum("direct " + folder + "/p.h5 --bin-ms 2 --letters 1-12 --surrogates 10 --quiet --json -");
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const json out = json::parse(r.out);
+    EXPECT_EQ(out["parameters"]["surrogates"], 10);
+    const json& rec = out["records"][0];
+    EXPECT_EQ(rec["fit_letters_from"], "calibration");
+    EXPECT_GT(rec["fit_letters"][1].get<int>(), 1);
+    EXPECT_GT(rec["info_rate_ci95_bits_per_s"][0].get<double>(), 0.0);
+    EXPECT_NEAR(rec["info_rate_bits_per_s"].get<double>(), exact, 0.1 * exact);
+    const json& cal = rec["calibration"];
+    EXPECT_EQ(cal["surrogates"], 10);
+    EXPECT_FALSE(cal["uncertain"].get<bool>());
+    // The plain estimate over the same range, before the bias correction.
+    EXPECT_NEAR(cal["plain"]["info_rate_bits_per_s"].get<double>() - cal["bias_bits_per_s"].get<double>(),
+                rec["info_rate_bits_per_s"].get<double>(), 1e-9);
+    ASSERT_GE(cal["by_fit"].size(), 2u);
+    for (const auto& f: cal["by_fit"]) {
+        for (const char* key: {"fit_letters", "info_rate_plain_bits_per_s", "model_info_rate_bits_per_s", "bias_bits_per_s",
+                               "spread_bits_per_s", "error_bits_per_s", "within_tolerance"}) {
+            EXPECT_TRUE(f.contains(key)) << key;
+        }
+    }
+    // Without --surrogates the record has no calibration, and the sampling rule alone misses the
+    // information (notes/validation.md, before calibration).
+    const auto plain = run_rastrum("direct " + folder + "/p.h5 --bin-ms 2 --letters 1-12 --quiet --json -");
+    const json plain_out = json::parse(plain.out);
+    const json& plain_rec = plain_out["records"][0];
+    EXPECT_TRUE(plain_rec["calibration"].is_null());
+    EXPECT_LT(std::abs(plain_rec["info_rate_bits_per_s"].get<double>()), 0.2 * exact);
 }
