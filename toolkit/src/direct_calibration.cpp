@@ -16,7 +16,7 @@ namespace rastrum {
 namespace {
 // The share of the measured bias counted as uncertain: the bias is the estimator's at the fitted
 // model, not at the truth (notes/methods-calibration.md; its size from notes/validation.md).
-constexpr double bias_allowance = 0.25;
+constexpr double bias_allowance = 0.1;
 }  // namespace
 
 double calibration_tolerance(double rate, double relative, double floor_bits_per_spike, double mean_rate_hz) {

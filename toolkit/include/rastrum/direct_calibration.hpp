@@ -8,7 +8,7 @@
 /// Bootstrap*, ch. 6 and 10). From that:
 ///   - the rate is corrected by the measured bias;
 ///   - its 95% interval is +-1.96 calibrated errors (the surrogates' spread, the uncertainty of
-///     their mean, and half the bias, since the model is fitted to the data rather than to the truth);
+///     their mean, and a tenth of the bias, since the model is fitted to the data rather than to the truth);
 ///   - the fit range is the longest whose calibrated error is within the tolerance, so longer words
 ///     enter whenever the data support them (the user's `--fit-letters` still decides when given);
 ///   - a record is marked uncertain when no range meets the tolerance.
@@ -48,7 +48,7 @@ struct rate_calibration {
 double calibration_tolerance(double rate, double relative, double floor_bits_per_spike, double mean_rate_hz);
 
 /// The calibrated error of a corrected rate from its surrogates' bias and spread (K surrogates):
-/// sqrt(spread^2 (1 + 1/K) + (bias / 2)^2).
+/// sqrt(spread^2 (1 + 1/K) + (bias / 10)^2).
 double calibrated_error(double bias, double spread, unsigned surrogates);
 
 }  // namespace rastrum
