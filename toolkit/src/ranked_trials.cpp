@@ -8,13 +8,15 @@ ranked_trials::ranked_trials(const std::vector<std::uint32_t>& condition, std::s
                              const std::vector<word_code>& response):
     condition_(condition), conditions_(conditions), rank_(response.size()), in_condition_(conditions, 0),
     repeated_in_(conditions) {
-    std::vector<word_code> codes = response;
-    std::sort(codes.begin(), codes.end());
-    codes.erase(std::unique(codes.begin(), codes.end()), codes.end());
-    distinct_ = codes.size();
-    for (std::size_t k = 0; k < response.size(); ++k) {
-        rank_[k] = static_cast<std::uint32_t>(std::lower_bound(codes.begin(), codes.end(), response[k]) - codes.begin());
+    // The trials in order of their codes; each run of equal codes gets the next rank.
+    std::vector<std::pair<word_code, std::uint32_t>> by_code(response.size());
+    for (std::size_t k = 0; k < response.size(); ++k) by_code[k] = {response[k], static_cast<std::uint32_t>(k)};
+    std::sort(by_code.begin(), by_code.end());
+    for (std::size_t i = 0; i < by_code.size(); ++i) {
+        if (i > 0 && by_code[i].first != by_code[i - 1].first) ++distinct_;
+        rank_[by_code[i].second] = static_cast<std::uint32_t>(distinct_);
     }
+    if (!by_code.empty()) ++distinct_;
     pooled_.assign(distinct_, 0);
     by_condition_.assign(conditions_ * distinct_, 0);
     // The ranks each condition holds: a subset's table of condition s is non-zero only there.
