@@ -75,9 +75,20 @@ void sparse_words::start(const sparse_letters& letters, word_code alphabet, int 
         insertion_sort_by_code(by_position_.data() + position_start_[t], by_position_.data() + by_position_.size());
     }
     position_start_[positions_] = by_position_.size();
+    pooled_ready_ = false;  // made when first asked for: a 1-letter total can be counted per trial instead
+}
+
+void sparse_words::letter_counts_per_trial(std::vector<std::uint32_t>& counts) const {
+    if (letters_ != 1) throw internal_error("sparse_words::letter_counts_per_trial after growing");
+    counts.assign(static_cast<std::size_t>(alphabet_ - 1) * trials_, 0);
+    for (const auto& e: letters_of_->nonzero) ++counts[(e.value - 1) * trials_ + e.trial];
+}
+
+void sparse_words::make_pooled() const {
     pooled_ = by_position_;
     counting_sort(pooled_.data(), pooled_.data() + pooled_.size(), alphabet_,
                   [](const entry& e) { return e.code; }, scratch_, bucket_);
+    pooled_ready_ = true;
 }
 
 void sparse_words::mark_occupied() {
@@ -112,6 +123,7 @@ void sparse_words::sort_runs_by_last_letter(entry* first, entry* last) {
 void sparse_words::grow() {
     if (letters_ >= max_letters_ || positions_ <= 1) throw internal_error("sparse_words::grow past its limit");
     if (occupied_.empty()) mark_occupied();
+    if (!pooled_ready_) make_pooled();
     const sparse_letters& letters = *letters_of_;
     const std::size_t shift = static_cast<std::size_t>(letters_);  // position t gains the letter at bin t + L
     const std::size_t positions = positions_ - 1;
