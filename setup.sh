@@ -1,7 +1,10 @@
 #!/usr/bin/env bash
-# Sets up rastrum on Debian 12 and runs it:
-#   ./setup.sh demo   install what is missing, build into build/, analyse the bundled demo recording
-#   ./setup.sh test   install what is missing, build into build/, run every test suite through ctest
+# Sets up rastrum on Debian 12 and runs it. Nothing is assumed on the machine, not even python3:
+#   ./setup.sh demo      install what the program needs, build only the program into build/, analyse
+#                        the bundled demo recordings
+#   ./setup.sh test      install what the program and its tests need, build everything into build/,
+#                        run every test suite through ctest
+#   ./setup.sh packages  only install what `test` needs (CI's sanitizer, fuzzer and valgrind steps)
 # As root, missing Debian packages are installed with apt-get; otherwise the exact apt-get line is
 # printed and the script stops.
 set -euo pipefail
@@ -9,18 +12,22 @@ cd "$(dirname "$0")"
 
 mode=${1:-}
 case "$mode" in
-  demo|test) ;;
+  demo|test|packages) ;;
   *) echo "usage: ./setup.sh demo|test" >&2; exit 2 ;;
 esac
 
-build_packages=(cmake make g++ pkg-config libhdf5-dev libeigen3-dev libboost-program-options-dev
-                nlohmann-json3-dev libssl-dev libgtest-dev libbenchmark-dev)
-# The reference checks run general-purpose libraries (scipy, scikit-learn, h5py) on Debian's python3.
-# The report page is opened in a headless browser (tests/browser/check_report_page.py).
-test_packages=(python3 python3-numpy python3-scipy python3-sklearn python3-h5py chromium)
+# The program: a compiler, CMake and the libraries it links (HDF5, Eigen, Boost.Program_options,
+# nlohmann-json, OpenSSL's libcrypto for SHA-256). The README lists the same packages.
+program_packages=(cmake make g++ pkg-config libhdf5-dev libeigen3-dev libboost-program-options-dev
+                  nlohmann-json3-dev libssl-dev)
+# The tests: GoogleTest and Google Benchmark; the reference checks run general-purpose libraries
+# (scipy, scikit-learn, h5py) on Debian's python3; the report page is opened in a headless browser
+# (tests/browser/check_report_page.py).
+test_packages=(libgtest-dev libbenchmark-dev python3 python3-numpy python3-scipy python3-sklearn
+               python3-h5py chromium)
 
-wanted=("${build_packages[@]}")
-[ "$mode" = test ] && wanted+=("${test_packages[@]}")
+wanted=("${program_packages[@]}")
+[ "$mode" != demo ] && wanted+=("${test_packages[@]}")
 
 missing=()
 for p in "${wanted[@]}"; do
@@ -38,9 +45,18 @@ if [ ${#missing[@]} -gt 0 ]; then
   fi
 fi
 
+[ "$mode" = packages ] && exit 0
+
 jobs=$(nproc 2>/dev/null || echo 2)
-cmake -S . -B build -DCMAKE_BUILD_TYPE=Release >/dev/null
-cmake --build build -j"$jobs"
+# Both modes share build/; each states the parts it needs, so a folder configured by the other is
+# reconfigured (the program's objects are reused), never taken as it was.
+if [ "$mode" = demo ]; then
+  cmake -S . -B build -DCMAKE_BUILD_TYPE=Release -DRASTRUM_TESTS=OFF -DRASTRUM_BENCH=OFF >/dev/null
+  cmake --build build -j"$jobs" --target rastrum
+else
+  cmake -S . -B build -DCMAKE_BUILD_TYPE=Release -DRASTRUM_TESTS=ON -DRASTRUM_BENCH=ON >/dev/null
+  cmake --build build -j"$jobs"
+fi
 
 if [ "$mode" = demo ]; then
   mkdir -p out/demo

@@ -16,7 +16,8 @@ constexpr const char* self = "/proc/self/exe";
 
 const char* const epilogue =
     "batch: 5 the batch ran but at least one task failed (the manifest gives each one's exit code and\n"
-    "message); 128 + N when signal N stopped it (130 for SIGINT, 143 for SIGTERM).\n\n"
+    "message; 6 for a task whose outputs cannot be written); 6 the batch cannot write its output folder\n"
+    "or manifest; 128 + N when signal N stopped it (130 for SIGINT, 143 for SIGTERM).\n\n"
     "The plan (Boost config-file syntax; '#' starts a comment; paths relative to the plan's folder):\n"
     "  output = FOLDER          where results and manifest.json go\n"
     "  [inputs]                 or [inputs.NAME], a named group of recordings\n"

@@ -1,23 +1,16 @@
 #include "command_line.hpp"
 #include "commands.hpp"
 
-#include <rastrum/atomic_file.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/provenance.hpp>
 #include <rastrum/recording_hdf5.hpp>
 #include <rastrum/version.hpp>
 
-#include <filesystem>
 #include <iostream>
 
 namespace rastrum::app {
 
 namespace {
-
-bool has_hdf5_name(const std::string& path) {
-    const std::string extension = std::filesystem::path(path).extension().string();
-    return extension == ".h5" || extension == ".hdf5";
-}
 
 std::size_t spike_count(const recording& rec) {
     std::size_t n = 0;
@@ -54,9 +47,12 @@ int run_convert(int argc, char** argv) {
         return 0;
     }
     const recording_source source = source_of(file, input);
+    const output_target target = resolve_output(out, "--out");
     if (!has_hdf5_name(out)) throw usage_error("--out " + out + ": name the native recording NAME.h5 (or NAME.hdf5)");
-    check_output_paths({out}, source_files(source));
-    if (!overwrite && std::filesystem::exists(out)) throw usage_error(out + " exists; choose another name or add --overwrite");
+    check_output_targets({target}, source_files(source));
+    refuse_to_replace(target, overwrite);
+    // Made ready before the recording is read: an OUT that cannot be written is known at once.
+    output_file written(target, output_file::content::by_path);
 
     provenance origin;
     const recording rec = read_input(source, quiet, origin, spikes_read::whole);
@@ -66,11 +62,10 @@ int run_convert(int argc, char** argv) {
         {"converted_from_format", rec.origin.format},
         {"converted_by", std::string("rastrum ") + version() + ": " + joined_command_line(argc + 1, argv - 1)},
         {"converted_utc", utc_now()}};
-    // Written and read back under a temporary name, renamed over OUT only once it has proved equal.
-    atomic_file target(out);
-    write_recording_hdf5(rec, target.temporary_path(), notes);
-    require_same(rec, read_recording_hdf5(target.temporary_path()), out);
-    target.commit();
+    // Written and read back under a temporary name, put in place only once it has proved equal.
+    write_recording_hdf5(rec, written, notes);
+    require_same(rec, read_recording_hdf5(written.path_to_write()), out);
+    finish_outputs({{&written, nullptr}});
     note(quiet, "wrote " + out + ": " + std::to_string(rec.units.size()) + " units, " + std::to_string(spike_count(rec)) +
                     " spikes, " + std::to_string(rec.trial_count()) + " trials" +
                     (rec.has_stimulus() ? " with labels" : "") + ", read back identical");

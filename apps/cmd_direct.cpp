@@ -67,6 +67,7 @@ int run_direct(int argc, char** argv) {
     if (vm.count("stimulus")) request.stimulus = stimulus;
     request.settings.subsets = parse_subset_estimator(subset_text);
     request.trials = trials_of(shared);
+    request.max_memory = max_memory_of(shared);
     check_direct_request(request);
     const recording_source source = source_of(file, input);
     const output_choice out = choose_outputs(shared, vm, source_files(source));

@@ -37,10 +37,11 @@ int run_figures(int argc, char** argv) {
         request.raster.psth_bin_ms = w[0];
     }
     if (vm.count("recording")) request.recording = recording_path;
-    // An input given as --out is an existing file, which this refuses too.
-    check_output_folder(out, "--out");
+    // An input given as --out is an existing file, which this refuses too. Made ready before any
+    // work: a folder that cannot be written is known at once.
+    output_folder folder(out, "--out");
     const figure_report report = make_figure_report(request);
-    write_output_folder(out, report.files);
+    folder.write(report.files);
     for (const auto& n: report.notices) note(quiet, "note: " + n);
     note(quiet, "wrote " + (std::filesystem::path(out) / "index.html").string() + " and " + std::to_string(report.figures) +
                     " figures");

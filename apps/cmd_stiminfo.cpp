@@ -79,7 +79,7 @@ int run_stiminfo(int argc, char** argv) {
     request.response.window_stop = window.second;
     request.response.code = parse_response_code(code_text);
     const auto bins = parse_number_list(bin_text, "--bin-ms");
-    if (bins.size() != 1 || !(bins[0] > 0)) throw usage_error("--bin-ms: one positive width in ms");
+    if (bins.size() != 1 || !(bins[0] > 0)) throw usage_error("--bin-ms: expected one positive width in ms, got '" + bin_text + "'");
     request.response.bin_width = bins[0] / 1000;
     if (vm.count("slide-ms")) request.slide = parse_ms_pair(slide_text, "--slide-ms");
     if (vm.count("stimuli")) request.stimuli = parse_text_list(stimuli_text, "--stimuli");
@@ -97,6 +97,7 @@ int run_stiminfo(int argc, char** argv) {
     request.settings.splits = static_cast<unsigned>(parse_whole_number(splits_text, "--splits", 1, 1000));
     request.settings.seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
     request.threads = static_cast<unsigned>(parse_whole_number(threads_text, "--threads", 0, 1024));
+    request.max_memory = max_memory_of(shared);
     check_stiminfo_request(request);
     const recording_source source = source_of(file, input);
     const output_choice out = choose_outputs(shared, vm, source_files(source));

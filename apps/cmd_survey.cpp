@@ -1,7 +1,7 @@
 #include "command_line.hpp"
 #include "commands.hpp"
 
-#include <rastrum/atomic_file.hpp>
+#include <rastrum/output_file.hpp>
 #include <rastrum/survey.hpp>
 #include <rastrum/version.hpp>
 
@@ -21,9 +21,11 @@ int run_survey(int argc, char** argv) {
                        {{"file", "FILE", recording_file_meaning, &file}}, vm)) {
         return 0;
     }
-    const std::optional<std::string> json_path = vm.count("json") ? std::optional(json_out) : std::nullopt;
+    const std::optional<output_target> json_target = output_option(vm, "--json", json_out);
     const recording_source source = source_of(file, input);
-    check_output_paths({json_path}, source_files(source));
+    if (json_target) check_output_targets({*json_target}, source_files(source));
+    std::optional<output_file> json_file;  // made ready before any work
+    if (json_target) json_file.emplace(*json_target);
 
     const source_contents contents = describe_source(source);
     provenance origin;
@@ -37,13 +39,10 @@ int run_survey(int argc, char** argv) {
     j.update(survey_json(overview));
     j["contents"] = contents_json(contents);
     const std::string json_text = j.dump(2) + "\n";
-    if (json_path && *json_path == "-") {
-        std::cout << json_text;
-        return 0;
-    }
-    if (json_path) write_text_atomically(*json_path, json_text);
+    if (json_file) finish_outputs({{&*json_file, &json_text}});
+    if (json_target && json_target->is_standard_output()) return 0;  // the JSON instead of the text
     std::cout << survey_text(overview, file) << contents_text(contents);
-    if (json_path) std::cerr << "wrote " << *json_path << "\n";
+    if (json_target) std::cerr << "wrote " << json_target->path << "\n";
     return 0;
 }
 

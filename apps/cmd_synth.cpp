@@ -4,7 +4,6 @@
 #include <rastrum/errors.hpp>
 #include <rastrum/synthetic_files.hpp>
 
-#include <filesystem>
 #include <functional>
 #include <iostream>
 
@@ -57,15 +56,12 @@ int run_synth(int argc, char** argv) {
     const std::uint64_t seed = parse_whole_number(seed_text, "--seed", 0, UINT64_MAX);
     session.trials = parse_whole_number(trials_text, "--trials", 1, 1000000);
     const std::size_t per_condition = parse_whole_number(per_condition_text, "--trials-per-condition", 1, 1000000);
-    const bool h5_name = out.size() > 3 && (out.compare(out.size() - 3, 3, ".h5") == 0 ||
-                                            (out.size() > 5 && out.compare(out.size() - 5, 5, ".hdf5") == 0));
-    if (!h5_name) throw usage_error("--out " + out + ": name the recording NAME.h5 (or NAME.hdf5)");
-    check_output_paths({out, answers_path_for(out)}, {});
-    for (const std::string& path: {out, answers_path_for(out)}) {
-        if (!overwrite && std::filesystem::exists(path)) {
-            throw usage_error(path + " exists; choose another name or add --overwrite");
-        }
-    }
+    const output_target recording_target = resolve_output(out, "--out");
+    if (!has_hdf5_name(out)) throw usage_error("--out " + out + ": name the recording NAME.h5 (or NAME.hdf5)");
+    const output_target answers_target = resolve_output(answers_path_for(out), "--out (its answers file)");
+    check_output_targets({recording_target, answers_target}, {});
+    refuse_to_replace(recording_target, overwrite);
+    refuse_to_replace(answers_target, overwrite);
 
     nlohmann::ordered_json parameters = {{"kind", kind}, {"seed", seed}, {"duration_s", session.duration},
                                          {"gap_s", session.gap}, {"background_hz", session.background_hz}};
@@ -79,11 +75,13 @@ int run_synth(int argc, char** argv) {
         parameters["modulation"] = modulations;
         if (kind == "frozen-bins") {
             frozen_bins_spec spec{session, bin_ms, rates, modulations, refractory, seed};
+            check_spec(spec);
             parameters["bin_ms"] = bin_ms;
             parameters["refractory"] = refractory;
             make = [spec](const unit_ready& ready) { return make_frozen_bins(spec, ready); };
         } else {
             poisson_spec spec{session, rates, modulations, correlation_ms, resolution_ms, seed};
+            check_spec(spec);
             parameters["correlation_ms"] = correlation_ms;
             parameters["resolution_ms"] = resolution_ms;
             make = [spec](const unit_ready& ready) { return make_poisson(spec, ready); };
@@ -98,12 +96,16 @@ int run_synth(int argc, char** argv) {
             spec.means.clear();
             for (const auto& row: means_text) spec.means.push_back(parse_number_list(row, "--means"));
         }
+        check_spec(spec);
         parameters["labels"] = spec.labels;
         parameters["trials_per_condition"] = per_condition;
         parameters["means"] = spec.means;
         make = [spec](const unit_ready& ready) { return make_conditions(spec, ready); };
     }
-    make_and_write_synthetic(make, out, parameters);
+    // Every parameter was checked above (check_spec), and the outputs are made ready before any spike
+    // is drawn: nothing is written for a request that fails, and an unwritable output is known at once.
+    output_file recording_file(recording_target, output_file::content::by_path), answers_file(answers_target);
+    make_and_write_synthetic(make, recording_file, answers_file, parameters);
     std::cerr << "wrote " << out << " and " << answers_path_for(out) << "\n";
     return 0;
 }

@@ -1,7 +1,6 @@
 #include "command_line.hpp"
 #include "progress_display.hpp"
 
-#include <rastrum/atomic_file.hpp>
 #include <rastrum/batch_plan.hpp>
 #include <rastrum/curves_output.hpp>
 #include <rastrum/errors.hpp>
@@ -11,11 +10,12 @@
 #include <rastrum/sha256.hpp>
 #include <rastrum/version.hpp>
 #include <rastrum/format.hpp>
+#include <rastrum/memory_bound.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <filesystem>
 #include <iostream>
-#include <set>
 
 namespace rastrum::app {
 
@@ -125,7 +125,10 @@ bool parse_command(int argc, char** argv, const std::string& command, const std:
         for (const auto& p: positional) std::cout << "  " << p.shown_as << "  " << p.meaning << "\n";
         std::cout << "\n" << shown << "\n"
                   << "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
-                     "4 the data cannot support the analysis. Outputs are written whole or not at all.\n"
+                     "4 the data cannot support the analysis, 6 an output cannot be written (the message names it\n"
+                     "and why); 128 + N stopped by signal N (SIGINT, SIGTERM, SIGHUP), its unfinished outputs removed.\n"
+                     "Output files are written whole or not at all (a temporary beside each, renamed; a symlink's\n"
+                     "target is replaced); '-', /dev/stdout, a FIFO or a device such as /dev/null is written directly.\n"
                   << epilogue;
         return false;
     }
@@ -175,22 +178,20 @@ std::string joined_command_line(const std::vector<std::string>& arguments) {
     return line;
 }
 
-void check_output_paths(const std::vector<std::optional<std::string>>& outputs, const std::vector<std::string>& inputs) {
-    namespace fs = std::filesystem;
-    std::set<fs::path> input_paths, output_paths;
+std::optional<output_target> output_option(const po::variables_map& vm, const std::string& option, const std::string& path) {
+    if (!vm.count(option.substr(2))) return std::nullopt;
+    return resolve_output(path, option);
+}
+
+bool has_hdf5_name(const std::string& path) {
+    const std::string extension = std::filesystem::path(path).extension().string();
+    return extension == ".h5" || extension == ".hdf5";
+}
+
+void refuse_to_replace(const output_target& target, bool overwrite) {
     std::error_code ec;
-    for (const auto& in: inputs) input_paths.insert(fs::weakly_canonical(in, ec));
-    for (const auto& out: outputs) {
-        if (!out || *out == "-") continue;
-        const fs::path p(*out);
-        const fs::path canonical = fs::weakly_canonical(p, ec);
-        if (input_paths.count(canonical)) throw usage_error("output " + *out + " would overwrite an input");
-        if (!output_paths.insert(canonical).second) throw usage_error("output " + *out + " is named twice");
-        const fs::path folder = p.has_parent_path() ? p.parent_path() : fs::path(".");
-        if (!fs::is_directory(folder, ec)) {
-            throw usage_error("output " + *out + ": folder " + folder.string() + " does not exist");
-        }
-        if (fs::is_directory(p, ec)) throw usage_error("output " + *out + " is a folder");
+    if (!overwrite && target.method == output_method::replace && std::filesystem::exists(target.final_path, ec)) {
+        throw usage_error(target.path + " exists; choose another name or add --overwrite");
     }
 }
 
@@ -207,7 +208,18 @@ void add_shared_options(po::options_description& options, shared_options& shared
          "write an HDF5 results file: the whole result and every curve, one group per analysis and unit")
         ("progress", po::value(&shared.progress)->default_value(shared.progress),
          "progress on stderr: auto (a bar on a terminal, nothing otherwise), bar, plain (a line every few seconds) or none")
-        ("quiet,q", po::bool_switch(&shared.quiet), "no table, no progress and no status lines");
+        ("quiet,q", po::bool_switch(&shared.quiet), "no table, no progress and no status lines")
+        ("max-memory", po::value(&shared.max_memory)->value_name("SIZE"),
+         ("the most memory the analysis may use, e.g. 8G or 512M (K, M, G, T: powers of 1024): what it would "
+          "need is estimated before any work, and a request beyond it is refused (exit 4); default: half of " +
+          [] {
+              const available_memory a = memory_available();
+              return format_bytes(static_cast<double>(a.bytes)) + " (" + a.limited_by + " here)";
+          }()).c_str());
+}
+
+std::uint64_t max_memory_of(const shared_options& shared) {
+    return shared.max_memory.empty() ? 0 : parse_memory_size(shared.max_memory, "--max-memory");
 }
 
 const char* const recording_file_meaning =
@@ -266,18 +278,17 @@ output_choice choose_outputs(const shared_options& shared, const po::variables_m
     output_choice out;
     out.quiet = shared.quiet;
     out.check_only = vm.count("check-options") > 0;
-    auto asked = [](const std::string& path) { return path.empty() ? std::nullopt : std::optional<std::string>(path); };
-    out.json = asked(shared.json);
-    out.csv = asked(shared.csv);
-    out.curves_csv = asked(shared.curves_csv);
-    out.h5 = asked(shared.h5);
+    out.json = output_option(vm, "--json", shared.json);
+    out.csv = output_option(vm, "--csv", shared.csv);
+    out.curves_csv = output_option(vm, "--curves-csv", shared.curves_csv);
+    out.h5 = output_option(vm, "--h5", shared.h5);
     out.progress = shared.progress;
     parse_progress_style(out.progress);
-    for (const auto& [path, option]: {std::make_pair(out.csv, "--csv"), std::make_pair(out.curves_csv, "--curves-csv"),
-                                      std::make_pair(out.h5, "--h5")}) {
-        if (path && *path == "-") throw usage_error(std::string(option) + " needs a file name");
+    std::vector<output_target> targets;
+    for (const auto* t: {&out.json, &out.csv, &out.curves_csv, &out.h5}) {
+        if (*t) targets.push_back(**t);
     }
-    check_output_paths({out.json, out.csv, out.curves_csv, out.h5}, inputs);
+    check_output_targets(targets, inputs);
     return out;
 }
 
@@ -296,8 +307,8 @@ rendered_results render_results(nlohmann::ordered_json result, std::vector<curve
     whole["curves"] = curves_json(curves);
     out.json = whole.dump(2) + "\n";
     // The HDF5 file keeps the result without its curves, which get datasets of their own.
-    out.write_h5 = [result = std::move(result), curves = std::move(curves)](const std::string& path) {
-        write_results_hdf5(path, result, curves);
+    out.write_h5 = [result = std::move(result), curves = std::move(curves)](const std::string& path, const std::string& shown) {
+        write_results_hdf5(path, result, curves, shown);
     };
     return out;
 }
@@ -317,6 +328,13 @@ recording read_input(const recording_source& source, bool quiet, provenance& ori
 int analyse_and_write(int argc, char** argv, const recording_source& source, unsigned threads, const output_choice& out,
                       const std::function<rendered_results(const recording&, provenance&)>& analyse) {
     if (out.check_only) return 0;
+    // Made ready before any work: an output that cannot be written is known now, not after the analysis.
+    std::optional<output_file> json, csv, curves_csv, h5;
+    if (out.json) json.emplace(*out.json);
+    if (out.csv) csv.emplace(*out.csv);
+    if (out.curves_csv) curves_csv.emplace(*out.curves_csv);
+    if (out.h5) h5.emplace(*out.h5, output_file::content::by_path);
+
     provenance origin;
     // argv[0] is the subcommand's name; the program's own name sits just before it.
     origin.command_line = joined_command_line(argc + 1, argv - 1);
@@ -336,33 +354,30 @@ int analyse_and_write(int argc, char** argv, const recording_source& source, uns
     if (rec.store) {
         for (const auto& w: rec.store->warnings()) note(out.quiet, "warning: " + w);
     }
-    std::vector<std::pair<std::string, std::string>> files;
-    if (out.json && *out.json != "-") files.emplace_back(*out.json, results.json);
     // One comment line of provenance, so a CSV file alone still says what made it (pandas reads
     // past it with comment='#', R with comment.char = '#').
     const std::string origin_line = "# " + results.provenance_json + "\n";
-    if (out.csv) files.emplace_back(*out.csv, origin_line + results.csv);
-    if (out.curves_csv) files.emplace_back(*out.curves_csv, origin_line + results.curves_csv);
-    // The HDF5 file is made under a temporary name first and renamed last, so a failure anywhere
-    // leaves none of the outputs changed.
-    std::optional<atomic_file> h5;
-    if (out.h5) {
-        h5.emplace(*out.h5);
-        results.write_h5(h5->temporary_path());
-    }
-    write_texts_atomically(files);
+    const std::string csv_text = origin_line + results.csv, curves_text = origin_line + results.curves_csv;
+    std::vector<std::pair<output_file*, const std::string*>> parts;
+    if (json) parts.emplace_back(&*json, &results.json);
+    if (csv) parts.emplace_back(&*csv, &csv_text);
+    if (curves_csv) parts.emplace_back(&*curves_csv, &curves_text);
     if (h5) {
-        h5->commit();
-        files.emplace_back(*out.h5, "");
+        results.write_h5(h5->path_to_write(), h5->target().path);
+        parts.emplace_back(&*h5, nullptr);
     }
-    if (out.json && *out.json == "-") {
-        std::cout << results.json;
-    } else if (!out.quiet) {
+    // Every output, or (on any error) none of the files changed.
+    finish_outputs(parts);
+    const bool table_elsewhere =
+        std::any_of(parts.begin(), parts.end(), [](const auto& p) { return p.first->target().is_standard_output(); });
+    if (!out.quiet && !table_elsewhere) {
         std::cout << results.table << "\nMade by rastrum " << version() << ": " << origin.command_line << "\n(input sha256 "
                   << origin.input_sha256 << ", " << origin.threads << (origin.threads == 1 ? " thread" : " threads")
                   << ", " << origin.started_utc << " to " << origin.finished_utc << ")\n";
     }
-    for (const auto& [path, text]: files) note(out.quiet, "wrote " + path);
+    for (const auto& p: parts) {
+        if (p.first->target().path != "-") note(out.quiet, "wrote " + p.first->target().path);
+    }
     return 0;
 }
 

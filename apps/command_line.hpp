@@ -2,6 +2,7 @@
 // What every subcommand shares: parsing of option values, the usage-error convention, and
 // writing outputs so that a failure leaves nothing half-written.
 #include <rastrum/curves.hpp>
+#include <rastrum/output_file.hpp>
 #include <rastrum/provenance.hpp>
 #include <rastrum/recording.hpp>
 #include <rastrum/recording_source.hpp>
@@ -61,9 +62,16 @@ std::string joined_command_line(int argc, char** argv);
 /// The same for a list of arguments.
 std::string joined_command_line(const std::vector<std::string>& arguments);
 
-/// Checks, before any work is done, that each output path can be written: its folder exists, it is
-/// not an input, and no two outputs share a path. Throws usage_error.
-void check_output_paths(const std::vector<std::optional<std::string>>& outputs, const std::vector<std::string>& inputs);
+/// The output `option` names when it was given (`vm` has it), resolved by resolve_output: how it
+/// will be written, or usage_error for an empty path, a folder, a socket, a missing folder.
+std::optional<output_target> output_option(const po::variables_map& vm, const std::string& option, const std::string& path);
+
+/// A recording's name: NAME.h5 or NAME.hdf5.
+bool has_hdf5_name(const std::string& path);
+
+/// Recordings are data: a file that `target` would replace is refused (usage_error) unless
+/// `overwrite`. A stream (a FIFO, a device) replaces nothing.
+void refuse_to_replace(const output_target& target, bool overwrite);
 
 /// How every command that reads a recording finds it: the format (detected from the content unless
 /// --format says) and the objects that hold units, trials and labels in NWB, MAT and text inputs.
@@ -92,22 +100,26 @@ struct shared_options {
     std::string h5;
     std::string progress = "auto";
     bool quiet = false;
+    std::string max_memory;  // empty: the default bound (memory_bound.hpp)
 };
 
 /// Declares --trials, --exclude-trials, --json, --csv (`csv_rows` says what a row is), --curves-csv,
-/// --h5, --progress and --quiet, stored in `shared`.
+/// --h5, --progress, --quiet and --max-memory, stored in `shared`.
 void add_shared_options(po::options_description& options, shared_options& shared, const std::string& csv_rows);
+
+/// --max-memory in bytes for an analysis request (0: the default bound). Throws usage_error.
+std::uint64_t max_memory_of(const shared_options& shared);
 
 /// --trials and --exclude-trials as a selection (everything when neither is given).
 trial_selection trials_of(const shared_options& shared);
 
-/// Where an analysis writes: --json (a file or '-' for stdout), --csv, --curves-csv, --h5, and how
-/// it reports progress.
+/// Where an analysis writes: --json, --csv, --curves-csv, --h5 (files, streams or '-' for stdout),
+/// and how it reports progress.
 struct output_choice {
-    std::optional<std::string> json;
-    std::optional<std::string> csv;
-    std::optional<std::string> curves_csv;
-    std::optional<std::string> h5;
+    std::optional<output_target> json;
+    std::optional<output_target> csv;
+    std::optional<output_target> curves_csv;
+    std::optional<output_target> h5;
     bool quiet = false;
     std::string progress = "auto";
     bool check_only = false;  // --check-options: every option is checked, nothing is read or written
@@ -123,8 +135,9 @@ struct rendered_results {
     std::string csv;
     std::string table;
     std::string curves_csv;
-    /// Writes the HDF5 results file at the path given (a temporary, renamed when all outputs are written).
-    std::function<void(const std::string&)> write_h5;
+    /// Writes the HDF5 results file at the path given (a temporary, renamed when all outputs are
+    /// written), naming the output as the user did (the second argument) in errors.
+    std::function<void(const std::string&, const std::string&)> write_h5;
     /// Where the result came from (tool, version, input, parameters, run) as one JSON object; CSV
     /// outputs start with it as a '#' comment line.
     std::string provenance_json;
@@ -144,10 +157,11 @@ enum class spikes_read { on_demand, whole };
 recording read_input(const recording_source& source, bool quiet, provenance& origin,
                      spikes_read how = spikes_read::on_demand);
 
-/// The part every analysis command shares: opens the recording (loader warnings to stderr, those of
-/// units read during the analysis after it), fills
-/// the provenance, lets `analyse` run and render (it sets `finished_utc`), writes the outputs all
-/// together and atomically, and prints the table or the JSON.
+/// The part every analysis command shares: makes the outputs ready (an output that cannot be
+/// written is an output_error before any work), opens the recording (loader warnings to stderr,
+/// those of units read during the analysis after it), fills the provenance, lets `analyse` run and
+/// render (it sets `finished_utc`), writes the outputs all together (finish_outputs), and prints
+/// the table unless an output went to standard output.
 int analyse_and_write(int argc, char** argv, const recording_source& source, unsigned threads, const output_choice& out,
                       const std::function<rendered_results(const recording&, provenance&)>& analyse);
 

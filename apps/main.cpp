@@ -1,7 +1,9 @@
 // rastrum: the command. Parses the subcommand, runs it, and maps every failure to one exit code
 // (documented in --help and README): 0 success, 1 unexpected, 2 usage, 3 invalid input,
-// 4 data that cannot support the analysis; batch adds 5 (some task failed) and 128 + signal.
+// 4 data that cannot support the analysis, 6 an output cannot be written; batch adds 5 (some task
+// failed); 128 + N when signal N stopped it.
 #include "commands.hpp"
+#include "stop_signals.hpp"
 
 #include <rastrum/errors.hpp>
 #include <rastrum/version.hpp>
@@ -12,7 +14,7 @@
 
 namespace {
 
-constexpr int exit_unexpected = 1, exit_usage = 2, exit_input = 3, exit_insufficient = 4;
+constexpr int exit_unexpected = 1, exit_usage = 2, exit_input = 3, exit_insufficient = 4, exit_output = 6;
 
 void print_overview() {
     std::cout << "rastrum " << rastrum::version()
@@ -32,7 +34,12 @@ void print_overview() {
                  "           native layout, checked to read back identical\n\n"
                  "'rastrum COMMAND --help' describes each command.\n\n"
                  "Exit codes: 0 success, 1 unexpected failure, 2 usage error, 3 unreadable or invalid input,\n"
-                 "4 the data cannot support the analysis; batch: 5 some task failed, 128 + N stopped by signal N.\n";
+                 "4 the data cannot support the analysis, 6 an output cannot be written (permission, missing\n"
+                 "folder, read-only or full file system); batch: 5 some task failed; 128 + N stopped by signal N\n"
+                 "(SIGINT, SIGTERM, SIGHUP: unfinished outputs are removed first).\n\n"
+                 "Outputs: a file (absent, regular, or a symlink to one, whose target is replaced) is written to\n"
+                 "a temporary beside it and renamed, whole or not at all; '-', /dev/stdout, a FIFO or a character\n"
+                 "device such as /dev/null is written directly; a folder, a socket or an empty name is a usage error.\n";
 }
 
 }  // namespace
@@ -52,6 +59,8 @@ int main(int argc, char** argv) {
         return 0;
     }
     try {
+        // batch stops its running task and records it on these signals (child_process.hpp).
+        if (command != "batch") rastrum::app::end_cleanly_on_stop_signals(command);
         // argv + 1: each subcommand sees its own name as argv[0].
         if (command == "survey") return rastrum::app::run_survey(argc - 1, argv + 1);
         if (command == "direct") return rastrum::app::run_direct(argc - 1, argv + 1);
@@ -71,6 +80,9 @@ int main(int argc, char** argv) {
     } catch (const rastrum::insufficient_data& e) {
         std::cerr << "rastrum " << command << ": error: the data cannot support this analysis: " << e.what() << "\n";
         return exit_insufficient;
+    } catch (const rastrum::output_error& e) {
+        std::cerr << "rastrum " << command << ": error: " << e.what() << "\n";
+        return exit_output;
     } catch (const std::bad_alloc&) {
         std::cerr << "rastrum " << command << ": error: out of memory\n";
         return exit_unexpected;

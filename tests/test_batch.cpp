@@ -372,7 +372,7 @@ TEST(batch, dry_run_says_what_would_run_and_writes_nothing) {
 
 TEST(batch, sigkill_mid_run_leaves_only_whole_files_and_the_rerun_finishes) {
     const batch_folder b = make_slow_batch_folder("batch-sigkill");
-    const auto run = start_rastrum("batch '" + b.plan + "' --threads 1");
+    const auto run = start_rastrum("batch '" + b.plan + "' --threads 1", ending::provoked);
     ASSERT_TRUE(wait_for_a_done_task(b, run)) << "the batch ended before it could be killed";
     ::kill(run.pid, SIGKILL);
     EXPECT_EQ(finish_rastrum(run).exit_code, 128 + SIGKILL);
@@ -411,7 +411,7 @@ TEST(batch, sigkill_mid_run_leaves_only_whole_files_and_the_rerun_finishes) {
 
 TEST(batch, sigterm_stops_the_running_task_and_the_manifest_says_what_finished) {
     const batch_folder b = make_slow_batch_folder("batch-sigterm");
-    const auto run = start_rastrum("batch '" + b.plan + "' --threads 1");
+    const auto run = start_rastrum("batch '" + b.plan + "' --threads 1", ending::provoked);
     ASSERT_TRUE(wait_for_a_done_task(b, run)) << "the batch ended before it could be stopped";
     // Meanwhile a second batch on the same folder is refused.
     const auto second = run_rastrum("batch '" + b.plan + "'");

@@ -166,8 +166,9 @@ TEST(cli, usage_errors_exit_2_and_write_nothing) {
         EXPECT_NE(r.err.find("error"), std::string::npos) << bad;
         EXPECT_FALSE(file_exists(folder + "/d.json")) << bad;
     }
+    // A missing folder is the file system's answer: exit 6, an output that cannot be written.
     const auto no_folder = run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --json " + folder + "/no/d.json");
-    EXPECT_EQ(no_folder.exit_code, 2);
+    EXPECT_EQ(no_folder.exit_code, 6);
     EXPECT_NE(no_folder.err.find("does not exist"), std::string::npos);
     const auto onto_input = run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --json " + small_recording());
     EXPECT_EQ(onto_input.exit_code, 2);
@@ -391,7 +392,7 @@ TEST(cli, curves_csv_and_hdf5_results_are_written_together) {
     }
     EXPECT_EQ(run_rastrum("direct " + folder + "/bad.h5 --bin-ms 2 --letters 1-4 --h5 " + folder + "/d.h5").exit_code, 3);
     EXPECT_EQ(read_file(folder + "/d.h5"), before);
-    EXPECT_EQ(run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --h5 " + folder + "/no/d.h5").exit_code, 2);
+    EXPECT_EQ(run_rastrum("direct " + small_recording() + " --bin-ms 2 --letters 1-4 --h5 " + folder + "/no/d.h5").exit_code, 6);
     for (const auto& entry: std::filesystem::directory_iterator(folder)) {
         EXPECT_EQ(entry.path().string().find(".tmp-"), std::string::npos) << entry.path();
     }

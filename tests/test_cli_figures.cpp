@@ -247,8 +247,9 @@ TEST(cli_figures, unreadable_results_exit_3_and_write_nothing) {
     EXPECT_FALSE(file_exists(folder + "/out"));
 }
 
-// Exit code 2 (usage) for outputs that cannot be written, as for the other commands' --json.
-TEST(cli_figures, output_folders_that_cannot_be_made_are_usage_errors) {
+// Exit code 2 (usage) for an --out that is not a folder, 6 for one whose parent is missing, as for
+// the other commands' --json.
+TEST(cli_figures, output_folders_that_cannot_be_made_are_refused_before_any_work) {
     const auto& in = shared_inputs();
     const std::string folder = fresh_folder("figures-bad-output");
     std::ofstream(folder + "/file") << "mine\n";
@@ -257,10 +258,10 @@ TEST(cli_figures, output_folders_that_cannot_be_made_are_usage_errors) {
     EXPECT_NE(onto_file.err.find("existing file"), std::string::npos) << onto_file.err;
     EXPECT_EQ(read_file(folder + "/file"), "mine\n");
     const auto under_file = run_rastrum(figures(in.direct + " --out " + folder + "/file/report"));
-    EXPECT_EQ(under_file.exit_code, 2);
+    EXPECT_EQ(under_file.exit_code, 6);
     EXPECT_NE(under_file.err.find("does not exist"), std::string::npos) << under_file.err;
     const auto no_parent = run_rastrum(figures(in.direct + " --out " + folder + "/a/b"));
-    EXPECT_EQ(no_parent.exit_code, 2);
+    EXPECT_EQ(no_parent.exit_code, 6);
     EXPECT_FALSE(file_exists(folder + "/a"));
     const auto onto_input = run_rastrum(figures(in.direct + " --out " + in.direct));
     EXPECT_EQ(onto_input.exit_code, 2);

@@ -82,7 +82,7 @@ TEST(LargeRecording, AnalysedWithinAMemoryLimitTheWholeFileWouldBreak) {
 #ifndef RASTRUM_SANITIZED
     // The limit bites: convert reads every unit before writing, and cannot within it.
     const auto converted = run_rastrum_limited("convert " + quoted(file) + " --quiet --out " + quoted(folder + "/copy.h5"),
-                                               600, limit_kib);
+                                               600, limit_kib, ending::provoked);
     EXPECT_NE(converted.exit_code, 0) << "convert held 153 MiB of spikes within the limit: the limit proves nothing";
     EXPECT_FALSE(file_exists(folder + "/copy.h5"));
 #endif

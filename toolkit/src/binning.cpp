@@ -9,7 +9,10 @@ namespace rastrum {
 std::size_t whole_bins(seconds duration, seconds bin_width) {
     if (!(bin_width > 0)) throw internal_error("whole_bins: bin width must be positive");
     if (!(duration > 0)) return 0;
-    return static_cast<std::size_t>(std::floor(duration / bin_width + 1e-9));
+    const double bins = std::floor(duration / bin_width + 1e-9);
+    // Beyond size_t the conversion would be undefined; callers refuse such counts before binning.
+    if (!(bins < 0x1p64)) return std::numeric_limits<std::size_t>::max();
+    return static_cast<std::size_t>(bins);
 }
 
 letter_matrix bin_spikes(const std::vector<std::vector<seconds>>& trial_spikes, seconds bin_width,

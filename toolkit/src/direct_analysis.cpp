@@ -1,3 +1,5 @@
+#include "analysis_memory.hpp"
+
 #include <rastrum/aligned_units.hpp>
 #include <rastrum/direct_analysis.hpp>
 #include <rastrum/errors.hpp>
@@ -59,16 +61,8 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
                                 " selected");
     }
     const seconds duration = common_duration(rec, trials);
-    // A limit from when every bin of every trial was held as a letter (24 bytes each with the words'
-    // codes and sort orders); the letters are now sparse, but word lists still grow with bins x trials
-    // where spikes are dense, so the limit stays.
-    const double largest_cells =
-        static_cast<double>(trials.size()) * duration / (*std::min_element(request.bin_ms.begin(), request.bin_ms.end()) / 1000);
-    if (largest_cells > 1 << 28) {
-        throw insufficient_data(rec.source + ": " + std::to_string(trials.size()) + " trials of " + format_number(duration) +
-                                " s at the narrowest bin make " + format_number(largest_cells) +
-                                " bins to hold at once (more than 2^28); use a wider bin or fewer trials");
-    }
+    // Before any unit is read or any letter allocated: what the tasks and their results will hold.
+    check_direct_memory(rec, request, units, trials.size(), duration);
     std::vector<std::string> pooled_labels;
     if (!request.stimulus && rec.has_stimulus()) {
         for (const auto& [label, n]: stimulus_labels(rec)) pooled_labels.push_back(label);

@@ -44,7 +44,7 @@ void check_direct_settings(const direct_settings& s) {
     }
     if (s.splits < 2) throw usage_error("--splits: at least 2 random splits of the trials are needed");
     if (!(s.bias_tolerance > 0 && s.bias_tolerance <= 1)) {
-        throw usage_error("--bias-tolerance must lie in (0, 1]");
+        throw usage_error("--bias-tolerance must lie in (0, 1], got " + format_number(s.bias_tolerance));
     }
 }
 
@@ -175,7 +175,7 @@ direct_estimate estimate_direct(const sparse_letters& letters, seconds bin_width
                                 std::to_string(n_trials));
     }
     if (letters.bins < static_cast<std::size_t>(settings.letters_max) + 1) {
-        throw insufficient_data("at " + format_fixed(1000 * bin_width, 3) + " ms bins the trials hold " +
+        throw insufficient_data("at " + format_number(1000 * bin_width) + " ms bins the trials hold " +
                                 std::to_string(letters.bins) + " whole bins; words of up to " +
                                 std::to_string(settings.letters_max) + " letters need at least " +
                                 std::to_string(settings.letters_max + 1) + " (narrower bins or fewer letters)");

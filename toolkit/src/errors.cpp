@@ -25,4 +25,7 @@ input_error::input_error(std::string file_, std::string object_, std::string exp
 
 insufficient_data::insufficient_data(const std::string& what): error(what) {}
 
+output_error::output_error(std::string path_, std::string reason_):
+    error("cannot write " + path_ + ": " + reason_), path(std::move(path_)), reason(std::move(reason_)) {}
+
 }  // namespace rastrum

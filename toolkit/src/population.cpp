@@ -1,10 +1,13 @@
+#include "ranked_trials.hpp"
+
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/population.hpp>
 #include <rastrum/random.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
-#include <map>
 
 namespace rastrum {
 
@@ -46,73 +49,140 @@ std::vector<labelled_responses> shuffled_within_conditions(const std::vector<lab
     return out;
 }
 
-double independent_information(const std::vector<labelled_responses>& units, const std::vector<std::size_t>& use) {
-    const std::size_t conditions = units[0].conditions;
+namespace {
+/// The independent-units information of the same units over many subsets of their trials. Each unit's
+/// responses are ranked once (rank order is code order); per subset, each unit's empirical P(r | s)
+/// is a dense table over its ranks, reused from subset to subset.
+class independent_units {
+public:
+    independent_units(const std::vector<labelled_responses>& units, std::size_t joint_limit):
+        units_(units), conditions_(units[0].conditions), joint_limit_(joint_limit), p_(units.size()), seen_(units.size()) {
+        for (const auto& u: units) {
+            detail::ranked_trials ranked(u.condition, u.conditions, u.response);
+            rank_.push_back(ranked.rank());
+            distinct_.push_back(ranked.distinct());
+        }
+    }
+
+    double information(const std::vector<std::size_t>& use);
+
+private:
+    void marginals(std::size_t u, const std::vector<std::size_t>& trials);
+    const std::vector<labelled_responses>& units_;
+    std::size_t conditions_;
+    std::size_t joint_limit_;
+    std::vector<std::vector<std::uint32_t>> rank_;
+    std::vector<std::size_t> distinct_;
+    std::vector<std::vector<double>> p_;                            // per unit: conditions x distinct, P(r | s)
+    std::vector<std::vector<std::vector<std::uint32_t>>> seen_;     // per unit and condition: ranks seen, increasing
+};
+
+void independent_units::marginals(std::size_t u, const std::vector<std::size_t>& trials) {
+    const std::size_t size = distinct_[u];
+    std::vector<double>& p = p_[u];
+    p.assign(conditions_ * size, 0);
+    for (std::size_t k: trials) p[units_[u].condition[k] * size + rank_[u][k]] += 1;
+    seen_[u].resize(conditions_);
+    for (std::size_t s = 0; s < conditions_; ++s) {
+        // Counts are whole numbers, so the total and each quotient do not depend on the order of summing.
+        double total = 0;
+        for (std::size_t i = 0; i < size; ++i) total += p[s * size + i];
+        seen_[u][s].clear();
+        for (std::size_t i = 0; i < size; ++i) {
+            if (p[s * size + i] == 0) continue;
+            p[s * size + i] /= total;
+            seen_[u][s].push_back(static_cast<std::uint32_t>(i));
+        }
+    }
+}
+
+double independent_units::information(const std::vector<std::size_t>& use) {
+    const std::size_t conditions = conditions_;
     std::vector<std::size_t> trials = use;
     if (trials.empty()) {
-        for (std::size_t k = 0; k < units[0].condition.size(); ++k) trials.push_back(k);
+        for (std::size_t k = 0; k < units_[0].condition.size(); ++k) trials.push_back(k);
     }
     const double n = static_cast<double>(trials.size());
     std::vector<double> p_s(conditions, 0);
-    for (std::size_t k: trials) p_s[units[0].condition[k]] += 1 / n;
-    // Each unit's empirical P(r_c | s).
-    std::vector<std::vector<std::map<word_code, double>>> marginal(units.size(), std::vector<std::map<word_code, double>>(conditions));
-    for (std::size_t u = 0; u < units.size(); ++u) {
-        for (std::size_t k: trials) marginal[u][units[u].condition[k]][units[u].response[k]] += 1;
-        for (std::size_t s = 0; s < conditions; ++s) {
-            double total = 0;
-            for (const auto& [r, c]: marginal[u][s]) total += c;
-            for (auto& [r, c]: marginal[u][s]) c /= total;
-        }
-    }
-    // P_ind(r | s) over the product of the supports, and the pooled P_ind(r).
-    std::vector<std::map<std::vector<word_code>, double>> conditional(conditions);
+    for (std::size_t k: trials) p_s[units_[0].condition[k]] += 1 / n;
+    const std::size_t m = units_.size();
+    for (std::size_t u = 0; u < m; ++u) marginals(u, trials);
+    // The product of the supports, counted before it is visited: it grows as the product of the
+    // units' distinct responses in each condition, and each is visited once per condition.
+    double support = 0;
     for (std::size_t s = 0; s < conditions; ++s) {
         if (p_s[s] == 0) continue;
-        std::map<std::vector<word_code>, double> product{{{}, 1.0}};
-        for (std::size_t u = 0; u < units.size(); ++u) {
-            std::map<std::vector<word_code>, double> grown;
-            for (const auto& [key, p]: product) {
-                for (const auto& [r, q]: marginal[u][s]) {
-                    auto longer = key;
-                    longer.push_back(r);
-                    grown[longer] = p * q;
-                }
-            }
-            if (grown.size() > 1000000) {
-                throw insufficient_data("the independent-units information needs more than 10^6 joint responses");
-            }
-            product = std::move(grown);
-        }
-        conditional[s] = std::move(product);
+        double product = 1;
+        for (std::size_t u = 0; u < m; ++u) product *= static_cast<double>(seen_[u][s].size());
+        support += product;
     }
-    std::map<std::vector<word_code>, double> pooled;
-    for (std::size_t s = 0; s < conditions; ++s) {
-        for (const auto& [r, p]: conditional[s]) pooled[r] += p_s[s] * p;
+    if (support > static_cast<double>(joint_limit_)) {
+        throw too_many_joint_responses("the independent-units information of these " + std::to_string(m) +
+                                       " units needs " + format_number(support) + " joint responses (the product of their "
+                                       "distinct responses in each condition), more than the " +
+                                       format_number(static_cast<double>(joint_limit_)) + " it may hold");
     }
+    // P_ind(r | s) = prod_c P(r_c | s) over the product of the units' supports in condition s, visited
+    // in lexicographic order (first unit slowest), and the pooled P_ind(r) = sum_t p(t) P_ind(r | t),
+    // summed over t in increasing order; conditions where some r_c was not seen add exact zeros.
+    // Products are formed left to right from 1. This is the order in which the sums were once taken
+    // over maps keyed by the response vectors, so the value is the same to the last bit.
     double info = 0;
+    std::vector<std::size_t> digit(m);
+    std::vector<std::uint32_t> at(m);
     for (std::size_t s = 0; s < conditions; ++s) {
-        for (const auto& [r, p]: conditional[s]) {
-            if (p > 0) info += p_s[s] * p * std::log2(p / pooled[r]);
+        if (p_s[s] == 0) continue;
+        double size = 1;
+        for (std::size_t u = 0; u < m; ++u) {
+            size *= static_cast<double>(seen_[u][s].size());
+        }
+        if (size == 0) continue;
+        std::fill(digit.begin(), digit.end(), 0);
+        while (true) {
+            double p = 1.0;
+            for (std::size_t u = 0; u < m; ++u) {
+                at[u] = seen_[u][s][digit[u]];
+                p = p * p_[u][s * distinct_[u] + at[u]];
+            }
+            double pooled = 0;
+            for (std::size_t t = 0; t < conditions; ++t) {
+                if (p_s[t] == 0) continue;
+                double q = 1.0;
+                for (std::size_t u = 0; u < m; ++u) q = q * p_[u][t * distinct_[u] + at[u]];
+                pooled += p_s[t] * q;
+            }
+            if (p > 0) info += p_s[s] * p * std::log2(p / pooled);
+            std::size_t u = m;
+            while (u > 0 && ++digit[u - 1] == seen_[u - 1][s].size()) digit[--u] = 0;
+            if (u == 0) break;
         }
     }
     return info;
 }
+}  // namespace
+
+double independent_information(const std::vector<labelled_responses>& units, const std::vector<std::size_t>& use,
+                               std::size_t joint_limit) {
+    return independent_units(units, joint_limit).information(use);
+}
 
 population_values population_information(const std::vector<labelled_responses>& units, info_estimator estimator,
-                                         const info_settings& settings, unsigned shuffles) {
+                                         const info_settings& settings, unsigned shuffles, std::size_t joint_limit) {
     population_values v;
     const labelled_responses joint = joint_responses(units);
     v.joint = stimulus_information(joint, estimator, settings);
     double independent_noise = 0;  // H_ind(R|S) = sum_c H(R_c|S)
     for (const auto& u: units) {
-        v.sum_single += stimulus_information(u, estimator, settings);
-        independent_noise += conditional_response_entropy(u, estimator, settings);
+        // conditional_response_entropy(u) without computing the unit's information twice.
+        const double info = stimulus_information(u, estimator, settings);
+        v.sum_single += info;
+        independent_noise += response_entropy(u.response, u.alphabet, estimator, settings) - info;
     }
     v.synergy = v.joint - v.sum_single;
+    independent_units independent(units, joint_limit);
     v.independent = extrapolate_over_trials(
         units[0].condition, units[0].conditions,
-        [&](const std::vector<std::size_t>& use) { return independent_information(units, use); }, settings);
+        [&](const std::vector<std::size_t>& use) { return independent.information(use); }, settings);
     double shuffled_noise = 0;  // H_sh(R|S), averaged over shuffles
     const unsigned repeats = std::max(1u, shuffles);
     for (unsigned i = 0; i < repeats; ++i) {

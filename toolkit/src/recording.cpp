@@ -1,9 +1,9 @@
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/recording.hpp>
 
 #include <algorithm>
 #include <cmath>
-#include <sstream>
 #include <unordered_map>
 #include <unordered_set>
 
@@ -17,12 +17,8 @@ std::string indexed(const std::string& object, std::size_t index) {
     return object + "[" + std::to_string(index) + "]";
 }
 
-std::string number(double x) {
-    std::ostringstream out;
-    out.precision(17);  // enough to tell two nearby times apart in a message
-    out << x;
-    return out.str();
-}
+// Exact, so that two nearby times are told apart, and short: 7.3, not 7.3000000000000007.
+std::string number(double x) { return exact_number(x); }
 
 std::string quoted(const std::string& s) { return "\"" + s + "\""; }
 
@@ -64,12 +60,13 @@ void validate_units(const recording& rec, const recording_places& places) {
 void validate_trials(const recording& rec, const recording_places& places) {
     const auto& start = rec.trial_start;
     const auto& stop = rec.trial_stop;
+    // No start times is the first thing to say: it is why stop times and labels then match nothing.
+    if (start.empty()) throw at(places.trial_starts(), "at least one trial", "no trials");
     if (stop.size() != start.size()) {
         throw at(places.trial_stops(),
                  std::to_string(start.size()) + " stop times, one per start time in " + places.trial_starts().object,
                  std::to_string(stop.size()));
     }
-    if (start.empty()) throw at(places.trial_starts(), "at least one trial", "no trials");
     for (std::size_t k = 0; k < start.size(); ++k) {
         if (!std::isfinite(start[k])) throw at(places.trial_start(k), "a finite time in seconds", number(start[k]));
         if (!std::isfinite(stop[k])) throw at(places.trial_stop(k), "a finite time in seconds", number(stop[k]));

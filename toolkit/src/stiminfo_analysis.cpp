@@ -1,7 +1,11 @@
+#include "analysis_memory.hpp"
+#include "ranked_trials.hpp"
+
 #include <rastrum/aligned_units.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/binning.hpp>
 #include <rastrum/format.hpp>
+#include <rastrum/memory_bound.hpp>
 #include <rastrum/parallel.hpp>
 #include <rastrum/random.hpp>
 #include <rastrum/stiminfo_analysis.hpp>
@@ -23,7 +27,15 @@ void check_stiminfo_request(const stiminfo_request& q) {
     }
     if (r.code != response_code::spike_count && !(r.bin_width > 0)) throw usage_error("--bin-ms must be positive");
     if (q.slide && (!(q.slide->first > 0) || !(q.slide->second > 0))) {
-        throw usage_error("--slide-ms W:S needs a positive width and step");
+        throw usage_error("--slide-ms W:S needs a positive width and step, got " + format_number(q.slide->first * 1000) +
+                          ":" + format_number(q.slide->second * 1000));
+    }
+    const seconds coded = q.slide ? q.slide->first : r.window_stop - r.window_start;
+    if (r.code != response_code::spike_count && whole_bins(coded, r.bin_width) == 0) {
+        throw usage_error("--bin-ms " + format_number(r.bin_width * 1000) + " is wider than " +
+                          (q.slide ? "the --slide-ms windows of " + format_number(coded * 1000) + " ms"
+                                   : "--window-ms " + format_number(r.window_start * 1000) + ":" +
+                                         format_number(r.window_stop * 1000)));
     }
     if (q.estimators.empty()) throw usage_error("--estimators: name at least one");
     if (q.settings.splits < 1) throw usage_error("--splits must be at least 1");
@@ -31,13 +43,18 @@ void check_stiminfo_request(const stiminfo_request& q) {
 
 namespace {
 
-std::vector<std::pair<seconds, seconds>> windows_of(const stiminfo_request& q) {
-    std::vector<std::pair<seconds, seconds>> w;
+/// The windows, `count` of them (stiminfo_window_count, already checked against the memory bound).
+std::vector<std::pair<seconds, seconds>> windows_of(const stiminfo_request& q, double count) {
     const seconds a = q.response.window_start, b = q.response.window_stop;
     if (!q.slide) return {{a, b}};
     const auto [width, step] = *q.slide;
-    for (seconds t = a; t + width <= b + 1e-12; t += step) w.emplace_back(t, t + width);
-    if (w.empty()) throw usage_error("--slide-ms: the sliding window is wider than --window-ms");
+    std::vector<std::pair<seconds, seconds>> w;
+    // Each start from its index, not by adding steps: a step below the resolution of the start
+    // would otherwise never advance.
+    for (std::size_t i = 0; static_cast<double>(i) < count; ++i) {
+        const seconds t = a + static_cast<double>(i) * step;
+        w.emplace_back(t, t + width);
+    }
     return w;
 }
 
@@ -86,17 +103,18 @@ double standard_deviation(const std::vector<double>& values) {
     return std::sqrt(ss / static_cast<double>(values.size() - 1));
 }
 
+/// `joint_limit`: the joint responses the independent-units information may hold (check_stiminfo_memory).
 population_record population_of(const std::vector<labelled_responses>& units, const stiminfo_request& q,
-                                const info_settings& settings) {
+                                const info_settings& settings, std::size_t joint_limit) {
     population_record p;
-    p.values = population_information(units, q.population_estimator, settings, q.within_condition_shuffles);
+    p.values = population_information(units, q.population_estimator, settings, q.within_condition_shuffles, joint_limit);
     p.low = p.high = p.values;
     if (q.bootstrap < 2) return p;
     // The same interval as for single units (see run_stiminfo): the envelope of the bias-corrected
     // estimators, widened on each side by 1.96 bootstrap standard deviations of the population estimator.
     for (info_estimator e: envelope_estimators(q.estimators, q.population_estimator)) {
         if (e == q.population_estimator) continue;
-        const population_values v = population_information(units, e, settings, q.within_condition_shuffles);
+        const population_values v = population_information(units, e, settings, q.within_condition_shuffles, joint_limit);
         for (auto field: population_fields) {
             p.low.*field = std::min(p.low.*field, v.*field);
             p.high.*field = std::max(p.high.*field, v.*field);
@@ -107,7 +125,7 @@ population_record population_of(const std::vector<labelled_responses>& units, co
     std::vector<population_values> boot;
     for (unsigned b = 0; b < q.bootstrap; ++b) {
         boot.push_back(population_information(resample_within_conditions(units, members, rng), q.population_estimator,
-                                              settings, q.within_condition_shuffles));
+                                              settings, q.within_condition_shuffles, joint_limit));
     }
     for (auto field: population_fields) {
         std::vector<double> values;
@@ -117,6 +135,19 @@ population_record population_of(const std::vector<labelled_responses>& units, co
         p.high.*field += 1.96 * sd;
     }
     return p;
+}
+
+/// Why a population's independent-units information was refused, with what set its limit.
+std::string joint_refusal(const std::string& source, const std::vector<std::string>& units, const stiminfo_request& q,
+                          std::size_t joint_limit, const std::string& what) {
+    std::string ids;
+    for (const auto& id: units) ids += (ids.empty() ? "" : ",") + id;
+    std::string out = source + ", --population " + ids + ": " + what;
+    if (joint_limit >= independent_joint_limit) return out + "; use a coarser code or fewer units";
+    const unsigned threads = effective_threads(q.threads);
+    return out + " within --max-memory " + format_bytes(static_cast<double>(memory_bound_of(q.max_memory))) +
+           (threads > 1 ? " shared by " + std::to_string(threads) + " threads" : "") +
+           "; use a coarser code, fewer units, fewer --threads or a larger --max-memory";
 }
 
 /// Highest minus lowest bias-corrected estimate (0 when fewer than two were asked for).
@@ -193,6 +224,7 @@ void refuse_repeats(const std::vector<std::string>& names, const std::string& op
 
 std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_request& q) {
     check_stiminfo_request(q);
+    check_stiminfo_size(q);
     if (!rec.has_stimulus()) {
         const place labels = rec.labels_place();
         throw input_error(labels.file, labels.object,
@@ -210,7 +242,7 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
     for (const auto& id: q.units) groups.push_back({rec.unit_index(id)});
     // A population's members are analysed alone too, so its synergy can be read against them.
     for (const auto& members: q.populations) {
-        if (members.size() < 2) throw usage_error("--population needs at least two units");
+        if (members.size() < 2) throw usage_error("--population " + members[0] + ": a population needs at least two units");
         refuse_repeats(members, "--population");
         for (const auto& id: members) {
             const std::size_t u = rec.unit_index(id);
@@ -280,7 +312,15 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         stimulus_entropy -= p * std::log2(p);
     }
 
-    const auto windows = windows_of(q);
+    const double window_count = stiminfo_window_count(q);
+    if (window_count < 1) {
+        throw usage_error("--slide-ms: the sliding window of " + format_number(q.slide->first * 1000) +
+                          " ms is wider than --window-ms " + format_number(q.response.window_start * 1000) + ":" +
+                          format_number(q.response.window_stop * 1000));
+    }
+    // Before any unit is read or any record allocated: what the tasks and their results will hold.
+    const std::size_t joint_limit = check_stiminfo_memory(rec, q, groups, per_condition, window_count);
+    const auto windows = windows_of(q, window_count);
     // Each unit is read when the first task needing it starts and let go after the last one: a
     // single unit's windows are adjacent tasks, and a population holds its members together.
     std::vector<std::size_t> uses(rec.units.size(), 0);
@@ -321,20 +361,27 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
 
         info_settings settings = q.settings;
         settings.seed = derive_seed(q.settings.seed, {text_hash(r.unit), static_cast<std::uint64_t>(w)});
-        if (members.size() > 1) r.population = population_of(members, q, settings);
+        if (members.size() > 1) {
+            try {
+                r.population = population_of(members, q, settings, joint_limit);
+            } catch (const too_many_joint_responses& e) {
+                throw insufficient_data(joint_refusal(rec.source, r.units, q, joint_limit, e.what()));
+            }
+        }
         for (info_estimator e: q.estimators) r.info_bits[e] = stimulus_information(t, e, settings);
         trial_fraction_curve(t, q, settings, r);
 
         // Label-shuffle null of the plug-in value: its mean is the plug-in bias under no information.
         const double plugin = stimulus_information(t, info_estimator::plugin, settings);
         random_stream rng(derive_seed(settings.seed, {0x5b0ffULL}));
-        labelled_responses shuffled = t;
+        detail::ranked_trials ranked(t.condition, t.conditions, t.response);  // the plug-in value of each relabelling
+        std::vector<std::uint32_t> shuffled = t.condition;
         std::size_t at_least = 0;
         double sum = 0;
         std::vector<double> null_values;
         for (unsigned i = 0; i < q.null_shuffles; ++i) {
-            shuffle(shuffled.condition, rng);
-            const double v = stimulus_information(shuffled, info_estimator::plugin, settings);
+            shuffle(shuffled, rng);
+            const double v = ranked.plugin_information_relabelled(shuffled);
             null_values.push_back(v);
             sum += v;
             if (v >= plugin - 1e-12) ++at_least;

@@ -1,4 +1,5 @@
 #include "log_gamma.hpp"
+#include "ranked_trials.hpp"
 
 #include <rastrum/code_counting.hpp>
 #include <rastrum/entropy.hpp>
@@ -10,7 +11,7 @@
 
 #include <algorithm>
 #include <cmath>
-#include <map>
+#include <memory>
 #include <numeric>
 
 namespace rastrum {
@@ -91,27 +92,28 @@ double plugin_information(const histograms& h) { return information_with(h, plug
 
 // Leave-one-trial-out: removing a trial with response r in condition s changes H(R) in one bin,
 // H(R|s) in one bin and every weight N_s' / N; trials in the same (s, r) cell give the same value.
+// Cells are visited by condition, then in increasing order of response (rank order is code order).
 double jackknife_information(const labelled_responses& t) {
     const double n = static_cast<double>(t.response.size());
-    if (n < 2) return plugin_information(histograms_of(t, {}));
-    std::map<word_code, count> pooled;
-    std::vector<std::map<word_code, count>> per(t.conditions);
+    detail::ranked_trials ranked(t.condition, t.conditions, t.response);
+    if (n < 2) return ranked.plugin_information();
+    const std::size_t distinct = ranked.distinct();
+    std::vector<std::uint32_t> pooled(distinct, 0), per(t.conditions * distinct, 0);
     std::vector<count> in_condition(t.conditions, 0);
     for (std::size_t k = 0; k < t.response.size(); ++k) {
-        ++pooled[t.response[k]];
-        ++per[t.condition[k]][t.response[k]];
+        const std::uint32_t r = ranked.rank()[k];
+        ++pooled[r];
+        ++per[t.condition[k] * distinct + r];
         ++in_condition[t.condition[k]];
     }
-    auto summary_of = [](const std::map<word_code, count>& m) {
-        count_summary s;
-        for (const auto& [code, c]: m) s.add(c);
-        return s;
-    };
-    const count_summary all = summary_of(pooled);
+    std::vector<std::uint32_t> scratch = pooled;
+    const count_summary all = detail::ranked_trials::summary_clearing(scratch.data(), distinct);
     std::vector<count_summary> cond;
     std::vector<double> h_cond;
-    for (const auto& m: per) {
-        cond.push_back(summary_of(m));
+    for (std::size_t s = 0; s < t.conditions; ++s) {
+        scratch.assign(per.begin() + static_cast<std::ptrdiff_t>(s * distinct),
+                       per.begin() + static_cast<std::ptrdiff_t>((s + 1) * distinct));
+        cond.push_back(detail::ranked_trials::summary_clearing(scratch.data(), distinct));
         h_cond.push_back(plugin_entropy(cond.back()));
     }
     // Entropy of a histogram with one sample less in a bin that held c samples.
@@ -124,27 +126,33 @@ double jackknife_information(const labelled_responses& t) {
     for (std::size_t s = 0; s < t.conditions; ++s) weighted_noise += static_cast<double>(in_condition[s]) * h_cond[s];
     double sum_left_out = 0;
     for (std::size_t s = 0; s < t.conditions; ++s) {
-        for (const auto& [code, c]: per[s]) {
-            const double h_total = without_one(all, pooled[code]);
+        for (std::size_t r = 0; r < distinct; ++r) {
+            const count c = per[s * distinct + r];
+            if (c == 0) continue;
+            const double h_total = without_one(all, pooled[r]);
             const double h_s = without_one(cond[s], c);
             const double noise = (weighted_noise - static_cast<double>(in_condition[s]) * h_cond[s] +
                                   (static_cast<double>(in_condition[s]) - 1) * h_s) / (n - 1);
             sum_left_out += static_cast<double>(c) * (h_total - noise);
         }
     }
-    return n * plugin_information(histograms_of(t, {})) - (n - 1) * sum_left_out / n;
+    return n * ranked.plugin_information() - (n - 1) * sum_left_out / n;
 }
 
 double extrapolated_information(const labelled_responses& t, const info_settings& settings) {
+    detail::ranked_trials ranked(t.condition, t.conditions, t.response);
     return extrapolate_over_trials(
-        t.condition, t.conditions, [&](const std::vector<std::size_t>& use) { return plugin_information(histograms_of(t, use)); },
+        t.condition, t.conditions, [&](const std::vector<std::size_t>& use) { return ranked.plugin_information(use); },
         settings);
 }
 
 double extrapolated_entropy(const std::vector<word_code>& responses, const info_settings& settings) {
+    // Blocks of a shuffled order of the trials; shuffling indices permutes them as it would the codes.
+    detail::ranked_trials ranked(std::vector<std::uint32_t>(responses.size(), 0), 1, responses);
     const double n = static_cast<double>(responses.size());
-    std::vector<double> x{1 / n}, y{plugin_of(counts_of_codes(responses))}, w{1};
-    std::vector<word_code> order = responses;
+    std::vector<std::uint32_t> order(responses.size());
+    for (std::size_t k = 0; k < order.size(); ++k) order[k] = static_cast<std::uint32_t>(k);
+    std::vector<double> x{1 / n}, y{ranked.plugin_entropy_of(order, 0, order.size())}, w{1};
     for (unsigned split = 0; split < settings.splits; ++split) {
         random_stream rng(derive_seed(settings.seed, {0xe47ULL, split}));
         shuffle(order, rng);
@@ -155,8 +163,7 @@ double extrapolated_entropy(const std::vector<word_code>& responses, const info_
                 const std::size_t to = order.size() * static_cast<std::size_t>(b + 1) / static_cast<std::size_t>(blocks);
                 if (to <= from) continue;
                 x.push_back(1 / static_cast<double>(to - from));
-                y.push_back(plugin_of(counts_of_codes(std::vector<word_code>(order.begin() + static_cast<std::ptrdiff_t>(from),
-                                                                       order.begin() + static_cast<std::ptrdiff_t>(to)))));
+                y.push_back(ranked.plugin_entropy_of(order, from, to));
                 w.push_back(1.0 / (blocks * settings.splits));
             }
         }
@@ -166,14 +173,20 @@ double extrapolated_entropy(const std::vector<word_code>& responses, const info_
 
 }  // namespace
 
+namespace {
+/// The halves and quarters of one call of extrapolate_over_trials, in the order they are fitted.
+struct stratified_subset {
+    std::vector<std::size_t> use;  // trial indices, increasing
+    double weight;
+};
+
 // Stratified random subsets: each condition's trials in random order, cut into quarters; halves are
 // pairs of quarters.
-double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std::size_t conditions,
-                               const std::function<double(const std::vector<std::size_t>&)>& value,
-                               const info_settings& settings) {
+std::vector<stratified_subset> draw_stratified_subsets(const std::vector<std::uint32_t>& condition, std::size_t conditions,
+                                                       const info_settings& settings) {
     std::vector<std::vector<std::size_t>> members(conditions);
     for (std::size_t k = 0; k < condition.size(); ++k) members[condition[k]].push_back(k);
-    std::vector<double> x{1 / static_cast<double>(condition.size())}, y{value({})}, w{1};
+    std::vector<stratified_subset> out;
     for (unsigned split = 0; split < settings.splits; ++split) {
         random_stream rng(derive_seed(settings.seed, {0x9e0ULL, split}));
         std::vector<std::vector<std::size_t>> quarter(4);
@@ -191,11 +204,46 @@ double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std:
                 }
                 if (use.empty()) continue;
                 std::sort(use.begin(), use.end());
-                x.push_back(1 / static_cast<double>(use.size()));
-                y.push_back(value(use));
-                w.push_back(1.0 / (blocks * settings.splits));
+                out.push_back({std::move(use), 1.0 / (blocks * settings.splits)});
             }
         }
+    }
+    return out;
+}
+
+/// The subsets depend only on the conditions of the trials, the seed and the number of splits, and a
+/// record asks for the same ones many times (every estimate, every bootstrap resample of a
+/// population keeps the conditions in place): the last draw of each thread is kept.
+std::shared_ptr<const std::vector<stratified_subset>> stratified_subsets(const std::vector<std::uint32_t>& condition, std::size_t conditions,
+                                                         const info_settings& settings) {
+    struct drawn {
+        std::vector<std::uint32_t> condition;
+        std::size_t conditions = 0;
+        info_settings settings;
+        std::shared_ptr<const std::vector<stratified_subset>> subsets;
+    };
+    thread_local drawn last;
+    if (!last.subsets || last.conditions != conditions || last.settings.seed != settings.seed ||
+        last.settings.splits != settings.splits || last.condition != condition) {
+        last.subsets = std::make_shared<const std::vector<stratified_subset>>(draw_stratified_subsets(condition, conditions, settings));
+        last.condition = condition;
+        last.conditions = conditions;
+        last.settings = settings;
+    }
+    return last.subsets;
+}
+}  // namespace
+
+double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std::size_t conditions,
+                               const std::function<double(const std::vector<std::size_t>&)>& value,
+                               const info_settings& settings) {
+    std::vector<double> x{1 / static_cast<double>(condition.size())}, y{value({})}, w{1};
+    // Held here: `value` may itself extrapolate (and redraw the thread's subsets).
+    const auto subsets = stratified_subsets(condition, conditions, settings);
+    for (const auto& subset: *subsets) {
+        x.push_back(1 / static_cast<double>(subset.use.size()));
+        y.push_back(value(subset.use));
+        w.push_back(subset.weight);
     }
     return fit_inverse_size(x, y, w).at_infinity;
 }
@@ -229,6 +277,38 @@ double panzeri_treves_bias(const std::vector<double>& relevant_per_condition, do
     return (sum - (relevant_pooled - 1)) / (2 * trials * std::log(2.0));
 }
 
+namespace {
+/// The grid of beta that relevant_responses searches (ln beta from -14 to 7 in steps of 0.05, the
+/// steps added as they always were) and, per thread, lnGamma(c + beta) - lnGamma(beta) for the counts
+/// c met so far.
+class relevant_grid {
+public:
+    relevant_grid() {
+        for (double log_beta = -14; log_beta <= 7; log_beta += 0.05) beta.push_back(std::exp(log_beta));
+        by_count_.resize(beta.size());
+    }
+    double rising(std::size_t i, count c) const {
+        std::vector<double>& row = by_count_[i];
+        if (c >= row.size()) {
+            if (c > 4096) return log_gamma(static_cast<double>(c) + beta[i]) - log_gamma(beta[i]);
+            const std::size_t from = row.size();
+            row.resize(static_cast<std::size_t>(c) + 1);
+            for (std::size_t m = from; m <= c; ++m) row[m] = log_gamma(static_cast<double>(m) + beta[i]) - log_gamma(beta[i]);
+        }
+        return row[c];
+    }
+    std::vector<double> beta;
+
+private:
+    mutable std::vector<std::vector<double>> by_count_;
+};
+
+const relevant_grid& relevant_grid_table() {
+    thread_local const relevant_grid grid;
+    return grid;
+}
+}  // namespace
+
 double relevant_responses(const std::vector<count>& counts, double alphabet) {
     // Observed values, plus the unseen ones a Dirichlet posterior would expect to show up in a
     // sample of the same size: sum over values of 1 - (1 - q)^N with q the posterior mean
@@ -243,15 +323,18 @@ double relevant_responses(const std::vector<count>& counts, double alphabet) {
     const double k = std::max(alphabet, observed);
     if (n == 0 || k <= observed) return observed;
     const double N = static_cast<double>(n);
-    auto log_evidence = [&](double beta) {
+    // The same grid of beta and the same counts recur in every histogram: lnGamma(c + beta) -
+    // lnGamma(beta) is kept per grid point and count (the values, and so the sums, are unchanged).
+    const auto& table = relevant_grid_table();
+    auto log_evidence = [&](std::size_t i, double beta) {
         double e = log_gamma(k * beta) - log_gamma(N + k * beta);
-        for (count c: seen) e += log_gamma(static_cast<double>(c) + beta) - log_gamma(beta);
+        for (count c: seen) e += table.rising(i, c);
         return e;
     };
     double best_beta = 1e-6, best = -INFINITY;
-    for (double log_beta = -14; log_beta <= 7; log_beta += 0.05) {
-        const double beta = std::exp(log_beta);
-        const double e = log_evidence(beta);
+    for (std::size_t i = 0; i < table.beta.size(); ++i) {
+        const double beta = table.beta[i];
+        const double e = log_evidence(i, beta);
         if (e > best) {
             best = e;
             best_beta = beta;

@@ -1,6 +1,5 @@
 #include <rastrum/binning.hpp>
 #include <rastrum/errors.hpp>
-#include <rastrum/format.hpp>
 #include <rastrum/random.hpp>
 #include <rastrum/synthetic.hpp>
 
@@ -21,7 +20,7 @@ namespace {
 std::uint64_t poisson_draw(double mean, random_stream& rng) {
     // Inversion by sequential search: exact, and fast for the small means used here.
     if (mean <= 0) return 0;
-    if (mean > 500) throw usage_error("Poisson means above 500 spikes are not supported by the generator");
+    if (mean > 500) throw internal_error("Poisson means above 500 spikes are refused by check_spec");
     double p = std::exp(-mean), cumulative = p;
     const double u = rng.uniform();
     std::uint64_t k = 0;
@@ -33,23 +32,10 @@ std::uint64_t poisson_draw(double mean, random_stream& rng) {
     return k;
 }
 
-/// The value for `unit` of a list that holds one value for all units or one per unit.
-double per_unit(const std::vector<double>& values, std::size_t unit, std::size_t units, const char* what) {
-    if (values.size() != 1 && values.size() != units) {
-        throw usage_error(std::string(what) + ": give one value, or one per unit (" + std::to_string(units) + "); got " +
-                          std::to_string(values.size()));
-    }
-    return values.size() == 1 ? values[0] : values[unit];
-}
+/// The value for `unit` of a list that holds one value for all units or one per unit (check_spec).
+double per_unit(const std::vector<double>& values, std::size_t unit) { return values.size() == 1 ? values[0] : values[unit]; }
 
 std::string unit_name(std::size_t u) { return "u" + std::to_string(u + 1); }
-
-void check_session(const session_shape& s) {
-    if (s.trials < 1) throw usage_error("--trials must be at least 1");
-    if (!(s.duration > 0)) throw usage_error("--duration-s must be positive");
-    if (!(s.gap >= 0)) throw usage_error("--gap-s must not be negative");
-    if (!(s.background_hz >= 0)) throw usage_error("--background-hz must not be negative");
-}
 
 /// Lays out trials and adds background spikes in the gaps between them (never inside a trial).
 void lay_out_session(recording& rec, const session_shape& s, std::size_t n_trials, random_stream& rng) {
@@ -191,9 +177,7 @@ double poisson_entropy_bits(double mean, std::vector<double>* pmf_out, std::size
 }  // namespace
 
 synthetic_recording make_frozen_bins(const frozen_bins_spec& spec, const unit_ready& ready) {
-    check_session(spec.session);
-    if (!(spec.bin_ms > 0)) throw usage_error("--bin-ms must be positive");
-    if (spec.rates_hz.empty()) throw usage_error("--rate-hz: give at least one rate");
+    check_spec(spec);
     random_stream rng(derive_seed(spec.seed, {1}));
     const seconds dt = spec.bin_ms / 1000.0;
     const std::size_t bins = whole_bins(spec.session.duration, dt);
@@ -202,13 +186,7 @@ synthetic_recording make_frozen_bins(const frozen_bins_spec& spec, const unit_re
 
     for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) {
         const double mean_p = spec.rates_hz[u] * dt;
-        const double m = per_unit(spec.modulations, u, spec.rates_hz.size(), "--modulation");
-        if (!(m >= 0 && m <= 10)) throw usage_error("--modulation must lie in [0, 10]");
-        if (!(spec.refractory >= 0 && spec.refractory <= 1)) throw usage_error("--refractory must lie in [0, 1]");
-        if (!(mean_p > 0) || mean_p > 0.5) {
-            throw usage_error("--rate-hz " + format_number(spec.rates_hz[u]) + " with --bin-ms " +
-                              format_number(spec.bin_ms) + " gives a mean spike probability per bin outside (0, 0.5]");
-        }
+        const double m = per_unit(spec.modulations, u);
         std::vector<double> p(bins);
         // Gamma-distributed gain with mean 1 and coefficient of variation m (shape 1/m^2).
         for (auto& x: p) x = m > 0 ? std::min(1.0, mean_p * m * m * std::exp(log_gamma_variate(1 / (m * m), rng))) : mean_p;
@@ -265,11 +243,7 @@ double single_spike_information(const std::vector<double>& rate) {
 }
 
 synthetic_recording make_poisson(const poisson_spec& spec, const unit_ready& ready) {
-    check_session(spec.session);
-    if (!(spec.correlation_ms > 0) || !(spec.resolution_ms > 0)) {
-        throw usage_error("--correlation-ms and --resolution-ms must be positive");
-    }
-    if (spec.rates_hz.empty()) throw usage_error("--rate-hz: give at least one rate");
+    check_spec(spec);
     random_stream rng(derive_seed(spec.seed, {2}));
     const seconds step = spec.resolution_ms / 1000.0;
     const std::size_t steps = whole_bins(spec.session.duration, step);
@@ -278,9 +252,7 @@ synthetic_recording make_poisson(const poisson_spec& spec, const unit_ready& rea
 
     const double a = std::exp(-spec.resolution_ms / spec.correlation_ms);
     for (std::size_t u = 0; u < spec.rates_hz.size(); ++u) {
-        const double m = per_unit(spec.modulations, u, spec.rates_hz.size(), "--modulation");
-        if (!(m >= 0)) throw usage_error("--modulation must not be negative");
-        if (!(spec.rates_hz[u] > 0)) throw usage_error("--rate-hz must be positive");
+        const double m = per_unit(spec.modulations, u);
         std::vector<double> rate(steps);
         double g = gaussian(rng);
         for (auto& r: rate) {
@@ -363,19 +335,7 @@ double poisson_count_information(const std::vector<double>& means) {
 }
 
 synthetic_recording make_conditions(const conditions_spec& spec, const unit_ready& ready) {
-    check_session(spec.session);
-    if (spec.labels.empty() || spec.trials_per_condition < 1) {
-        throw usage_error("conditions need at least one label and one trial per condition");
-    }
-    if (spec.means.empty()) throw usage_error("--means: give one row of means per unit");
-    for (const auto& row: spec.means) {
-        if (row.size() != spec.labels.size()) {
-            throw usage_error("--means: each unit needs one mean per condition (" + std::to_string(spec.labels.size()) + ")");
-        }
-        for (double mu: row) {
-            if (!(mu >= 0)) throw usage_error("--means must not be negative");
-        }
-    }
+    check_spec(spec);
     random_stream rng(derive_seed(spec.seed, {3}));
     std::vector<std::size_t> condition;
     for (std::size_t c = 0; c < spec.labels.size(); ++c) {

@@ -203,6 +203,12 @@ def make():
         f["spikes"][0, 1] = ds.ref
     mat("mat-cell-larger-than-the-file.mat", claims)
     case("mat-cell-larger-than-the-file.mat", "fits in the file", "spikes{2}", MAT_OPTIONS)
+    def empty_trial_start(f):
+        del f["trial_start"]
+        write_nwb_mat.matlab_empty(f, "trial_start", "double")
+    mat("mat-empty-trial-start.mat", empty_trial_start)
+    # Labels are given too: the error must name the start variable, not the labels it leaves unmatched.
+    case("mat-empty-trial-start.mat", "no trials", "trial_start", MAT_OPTIONS + ["--mat-stimulus", "stimulus"])
     mat("mat-truncated.mat")
     truncate("mat-truncated.mat", 0.5)
     case("mat-truncated.mat", "truncated", "", MAT_OPTIONS)

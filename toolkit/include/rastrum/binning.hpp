@@ -21,7 +21,8 @@ struct letter_matrix {
 };
 
 /// How many whole bins of `bin_width` fit in `duration` (a bin that would end past `duration`,
-/// beyond a rounding tolerance of 1e-9 bins, is dropped). Requires bin_width > 0.
+/// beyond a rounding tolerance of 1e-9 bins, is dropped; a count beyond size_t gives its largest
+/// value). Requires bin_width > 0.
 std::size_t whole_bins(seconds duration, seconds bin_width);
 
 /// Bins trial-relative spike times: a spike at time t goes to bin floor(t / bin_width) when that

@@ -18,7 +18,8 @@ std::string curves_csv(const std::vector<curve_series>& curves, const std::strin
 
 /// Writes `result` (the whole JSON result, kept as the root attribute `result_json`) and every curve
 /// to a new HDF5 file at `path` (the caller makes it atomic). Layout in notes/recording-layout.md.
+/// Throws output_error naming `shown_as` (the output as the user named it; `path` when empty).
 void write_results_hdf5(const std::string& path, const nlohmann::ordered_json& result,
-                        const std::vector<curve_series>& curves);
+                        const std::vector<curve_series>& curves, const std::string& shown_as = "");
 
 }  // namespace rastrum

@@ -6,6 +6,7 @@
 #include <rastrum/parallel.hpp>
 #include <rastrum/recording.hpp>
 
+#include <cstdint>
 #include <optional>
 #include <string>
 #include <vector>
@@ -21,6 +22,7 @@ struct direct_request {
     direct_settings settings;
     unsigned null_rotations = 0;            // rotated-trial null estimates per unit and bin width
     unsigned threads = 1;                   // 0: one per core
+    std::uint64_t max_memory = 0;           // [bytes] the bound of memory_bound.hpp; 0: its default
     progress_callback progress;             // told after each unit and bin width
 };
 
@@ -39,7 +41,8 @@ struct direct_record {
 };
 
 /// Throws usage_error for unknown units, labels or bad settings (before any work), and
-/// insufficient_data when the trials cannot support the analysis.
+/// insufficient_data when the trials cannot support the analysis or, before anything large is
+/// allocated, when it would need more memory than `max_memory` allows.
 std::vector<direct_record> run_direct(const recording& rec, const direct_request& request);
 
 /// Checks a request against nothing but itself (option ranges). Throws usage_error.

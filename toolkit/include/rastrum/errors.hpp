@@ -1,7 +1,7 @@
 #pragma once
 /// Two roots: `internal_error` is a bug in rastrum; `error` is something the user can act on.
 /// The command maps them to exit codes in one place (apps/main.cpp):
-/// input_error -> 3, insufficient_data -> 4, usage_error -> 2, anything else -> 1.
+/// input_error -> 3, insufficient_data -> 4, usage_error -> 2, output_error -> 6, anything else -> 1.
 #include <stdexcept>
 #include <string>
 
@@ -35,6 +35,15 @@ struct input_error: error {
 /// too large to encode, ...). `what` says which and what would be needed.
 struct insufficient_data: error {
     explicit insufficient_data(const std::string& what);
+};
+
+/// An output that cannot be created or written: a folder without write permission, a missing
+/// folder, a read-only or full file system, a closed pipe. `path` is the output as the user named
+/// it, `reason` what the system said ("Permission denied").
+struct output_error: error {
+    output_error(std::string path, std::string reason);
+    std::string path;
+    std::string reason;
 };
 
 }  // namespace rastrum

@@ -3,8 +3,10 @@
 /// taken one at a time (synergy or redundancy), with conditionally independent units, and with the
 /// shuffle-corrected estimate of Montemurro, Senatore & Panzeri 2007 (Neural Comput. 19:2913) and
 /// Panzeri, Senatore, Montemurro & Petersen 2007 (J. Neurophysiol. 98:1064).
+#include <rastrum/errors.hpp>
 #include <rastrum/stimulus_information.hpp>
 
+#include <cstddef>
 #include <cstdint>
 #include <vector>
 
@@ -19,10 +21,23 @@ labelled_responses joint_responses(const std::vector<labelled_responses>& units)
 std::vector<labelled_responses> shuffled_within_conditions(const std::vector<labelled_responses>& units,
                                                            std::uint64_t seed);
 
+/// The most joint responses independent_information visits, summed over the conditions: its default
+/// limit, which a caller lowers to bound the work (each joint response is visited once per condition;
+/// none is stored, so the limit bounds time, and memory estimates that count them err high).
+inline constexpr std::size_t independent_joint_limit = 1000000;
+
+/// What independent_information throws when the joint responses exceed its limit (exit 4 as any
+/// insufficient_data), so that a caller that set the limit can say why.
+struct too_many_joint_responses: insufficient_data {
+    using insufficient_data::insufficient_data;
+};
+
 /// I(S;R) if the units were conditionally independent: the plug-in information of the product of the
 /// units' empirical conditional distributions, summed exactly over its support, over the trials in
-/// `use` (all when empty). Throws insufficient_data when that support exceeds 10^6 joint responses.
-double independent_information(const std::vector<labelled_responses>& units, const std::vector<std::size_t>& use = {});
+/// `use` (all when empty). Throws insufficient_data, before building it, when that support summed over
+/// the conditions exceeds `joint_limit` joint responses.
+double independent_information(const std::vector<labelled_responses>& units, const std::vector<std::size_t>& use = {},
+                               std::size_t joint_limit = independent_joint_limit);
 
 struct population_values {
     double joint = 0;              // I(S; R1..Rn)
@@ -35,7 +50,9 @@ struct population_values {
 /// Every value but `independent` by `estimator`; `independent` is the plug-in product of marginals
 /// extrapolated in 1/N like quadratic-extrapolation, because its plug-in value is biased upward. H_ind(R|S) is the sum of the units' conditional
 /// entropies; H_sh(R|S) is averaged over `shuffles` within-condition shuffles.
+/// `joint_limit` bounds the joint responses of `independent` (see independent_information).
 population_values population_information(const std::vector<labelled_responses>& units, info_estimator estimator,
-                                         const info_settings& settings, unsigned shuffles);
+                                         const info_settings& settings, unsigned shuffles,
+                                         std::size_t joint_limit = independent_joint_limit);
 
 }  // namespace rastrum

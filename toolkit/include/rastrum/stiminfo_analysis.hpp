@@ -8,6 +8,7 @@
 #include <rastrum/responses.hpp>
 #include <rastrum/stimulus_information.hpp>
 
+#include <cstdint>
 #include <map>
 #include <optional>
 #include <string>
@@ -32,6 +33,7 @@ struct stiminfo_request {
     unsigned trial_fraction_repeats = 4;  // draws per fraction of the trials; 0: no trial-fraction curve
     info_settings settings;
     unsigned threads = 1;
+    std::uint64_t max_memory = 0;        // [bytes] the bound of memory_bound.hpp; 0: its default
     progress_callback progress;  // told after each unit (or population) and window
 };
 
@@ -73,7 +75,9 @@ struct stiminfo_record {
 };
 
 /// Throws usage_error for unknown units or labels and bad settings, insufficient_data when a window
-/// is longer than the shortest trial or fewer than two conditions keep two trials.
+/// is longer than the shortest trial or fewer than two conditions keep two trials and, before
+/// anything large is allocated, when the code cannot hold the request (a word longer than 64
+/// letters, more than 2^53 latency bins) or the analysis would need more memory than `max_memory` allows.
 std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_request& request);
 
 void check_stiminfo_request(const stiminfo_request& request);

@@ -79,6 +79,15 @@ struct synthetic_recording {
 /// and so the recording, are the same with or without it.
 using unit_ready = std::function<void(recording& rec, std::size_t u)>;
 
+/// Checks a spec before anything is made (the make_ functions call it first): usage_error naming
+/// the option for values out of range, a label named twice (two conditions would be one in the
+/// file, and the answers would describe another recording), too few bins for the answers, a
+/// session too long for its spike times to resolve the finest time scale (--duration-s 1e308), and
+/// one unit's spikes beyond the default memory bound (memory_bound.hpp).
+void check_spec(const frozen_bins_spec& spec);
+void check_spec(const poisson_spec& spec);
+void check_spec(const conditions_spec& spec);
+
 synthetic_recording make_frozen_bins(const frozen_bins_spec& spec, const unit_ready& ready = {});
 synthetic_recording make_poisson(const poisson_spec& spec, const unit_ready& ready = {});
 synthetic_recording make_conditions(const conditions_spec& spec, const unit_ready& ready = {});

@@ -1,15 +1,12 @@
 #include <rastrum/atomic_file.hpp>
 #include <rastrum/errors.hpp>
 #include <rastrum/output_folder.hpp>
+#include <rastrum/temporary_files.hpp>
 
 #include <algorithm>
-#include <cerrno>
-#include <cstring>
 #include <filesystem>
 #include <fstream>
 #include <set>
-#include <sstream>
-#include <unistd.h>
 
 namespace rastrum {
 
@@ -41,13 +38,6 @@ std::string manifest_text(const std::vector<std::pair<std::string, std::string>>
     return text;
 }
 
-void write_plain(const fs::path& path, const std::string& text) {
-    std::ofstream out(path, std::ios::binary | std::ios::trunc);
-    out.write(text.data(), static_cast<std::streamsize>(text.size()));
-    out.close();
-    if (!out) throw error("cannot write " + path.string() + ": " + std::strerror(errno));
-}
-
 void check_names(const std::vector<std::pair<std::string, std::string>>& files) {
     std::set<std::string> seen;
     for (const auto& f: files) {
@@ -57,23 +47,32 @@ void check_names(const std::vector<std::pair<std::string, std::string>>& files) 
     }
 }
 
-void write_new_folder(const fs::path& folder, const std::vector<std::pair<std::string, std::string>>& files) {
-    const fs::path name = folder.lexically_normal().filename().empty() ? folder.lexically_normal().parent_path().filename()
-                                                                        : folder.lexically_normal().filename();
-    const fs::path temporary = parent_of(folder) / (name.string() + ".tmp-" + std::to_string(::getpid()));
-    std::error_code ec;
-    if (!fs::create_directory(temporary, ec)) {
-        throw usage_error("cannot create the output folder beside " + folder.string() + ": " +
-                          (ec ? ec.message() : "a temporary " + temporary.string() + " is in the way"));
+fs::path last_part(const fs::path& folder) {
+    const fs::path p = folder.lexically_normal();
+    return p.filename().empty() ? p.parent_path().filename() : p.filename();
+}
+
+// Files with their texts as one group of outputs at paths of our own.
+std::vector<std::pair<std::string, std::string>> placed(const fs::path& folder, const std::vector<std::pair<std::string, std::string>>& files) {
+    std::vector<std::pair<std::string, std::string>> paths;
+    for (const auto& [file, text]: files) paths.emplace_back((folder / file).string(), text);
+    paths.emplace_back((folder / output_manifest_name).string(), manifest_text(files));
+    return paths;
+}
+
+// Where `folder` leads through symbolic links: a link to a folder not made yet makes the folder
+// where it points, and the link is kept (as for a file, whose link's target is replaced).
+std::string followed(const std::string& folder) {
+    fs::path p = fs::path(folder).lexically_normal();
+    if (p.filename().empty()) p = p.parent_path();
+    for (int hop = 0; hop < 40 && !p.empty(); ++hop) {
+        std::error_code ec;
+        if (!fs::is_symlink(fs::symlink_status(p, ec))) break;
+        const fs::path target = fs::read_symlink(p, ec);
+        if (ec) break;
+        p = (target.is_absolute() ? target : parent_of(p) / target).lexically_normal();
     }
-    try {
-        for (const auto& [file, text]: files) write_plain(temporary / file, text);
-        write_plain(temporary / output_manifest_name, manifest_text(files));
-        fs::rename(temporary, folder);
-    } catch (...) {
-        fs::remove_all(temporary, ec);  // only what this run made
-        throw;
-    }
+    return p.empty() ? folder : p.string();
 }
 
 void write_into_folder(const fs::path& folder, const std::vector<std::pair<std::string, std::string>>& files) {
@@ -85,10 +84,7 @@ void write_into_folder(const fs::path& folder, const std::vector<std::pair<std::
             throw usage_error(p.string() + " exists and was not written by rastrum: move it away or choose another --out");
         }
     }
-    std::vector<std::pair<std::string, std::string>> paths;
-    for (const auto& [file, text]: files) paths.emplace_back((folder / file).string(), text);
-    paths.emplace_back((folder / output_manifest_name).string(), manifest_text(files));
-    write_texts_atomically(paths);
+    write_texts_atomically(placed(folder, files));
     // Files of an earlier run that this one did not make again would be stale beside the new page.
     for (const auto& old: ours) {
         const bool kept = std::any_of(files.begin(), files.end(), [&](const auto& f) { return f.first == old; });
@@ -102,24 +98,71 @@ void check_output_folder(const std::string& folder, const std::string& option) {
     const fs::path p(folder);
     if (folder.empty()) throw usage_error(option + ": empty folder name");
     const auto status = fs::status(p, ec);
+    if (ec == std::errc::permission_denied) throw output_error(folder, ec.message());
     if (fs::exists(status)) {
         if (!fs::is_directory(status)) throw usage_error(option + " " + folder + " is an existing file, not a folder");
         return;
     }
     const fs::path parent = parent_of(p);
     if (!fs::is_directory(parent, ec)) {
-        throw usage_error(option + " " + folder + ": folder " + parent.string() + " does not exist (only the last folder is created)");
+        throw output_error(folder, "folder " + parent.string() + " does not exist (only the last folder is created)");
     }
 }
 
-void write_output_folder(const std::string& folder, const std::vector<std::pair<std::string, std::string>>& files) {
-    check_names(files);
-    check_output_folder(folder, "output");
-    if (fs::exists(fs::path(folder))) {
-        write_into_folder(folder, files);
-    } else {
-        write_new_folder(folder, files);
+output_folder::output_folder(std::string folder, const std::string& option): folder_(followed(folder)) {
+    if (folder.empty()) throw usage_error(option + ": empty folder name");
+    check_output_folder(folder_, option);
+    std::error_code ec;
+    if (fs::exists(fs::path(folder_), ec)) {
+        // Writing into it: a file of ours made there now shows that it can be written.
+        const std::string manifest = (fs::path(folder_) / output_manifest_name).string();
+        probe_.emplace(output_target{folder_, manifest, output_method::replace});
+        return;
     }
+    // A new folder is filled under a temporary name beside it and renamed when whole.
+    const fs::path parent = parent_of(folder_);
+    const std::string name = last_part(folder_).string();
+    remove_stale_temporaries(parent.string(), name);
+    temporary_ = temporary_name_for((parent / name).string());
+    register_temporary(temporary_);
+    if (!fs::create_directory(temporary_, ec)) {
+        forget_temporary(temporary_);
+        throw output_error(folder_, "cannot create a folder in " + parent.string() + ": " +
+                                        (ec ? ec.message() : "a temporary " + temporary_ + " is in the way"));
+    }
+}
+
+output_folder::~output_folder() {
+    if (temporary_.empty()) return;
+    std::error_code ec;
+    fs::remove_all(temporary_, ec);  // only what this run made
+    forget_temporary(temporary_);
+}
+
+void output_folder::write(const std::vector<std::pair<std::string, std::string>>& files) {
+    check_names(files);
+    if (temporary_.empty()) {
+        probe_.reset();  // the manifest is written again with the files
+        write_into_folder(folder_, files);
+        return;
+    }
+    try {
+        write_texts_atomically(placed(temporary_, files));
+    } catch (const output_error& e) {
+        // Named as the user will look for it, not inside the temporary folder.
+        const std::string inside = e.path.compare(0, temporary_.size(), temporary_) == 0 ? e.path.substr(temporary_.size()) : "";
+        throw output_error(folder_ + inside, e.reason);
+    }
+    const temporaries_held hold;  // the rename, or (after a signal) the removal, not both
+    std::error_code ec;
+    fs::rename(temporary_, folder_, ec);
+    if (ec) throw output_error(folder_, ec.message());
+    forget_temporary(temporary_);
+    temporary_.clear();
+}
+
+void write_output_folder(const std::string& folder, const std::vector<std::pair<std::string, std::string>>& files) {
+    output_folder(folder, "output").write(files);
 }
 
 std::string file_name_part(const std::string& text) {

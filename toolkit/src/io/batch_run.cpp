@@ -36,15 +36,23 @@ std::string error_message(const std::string& stderr_text) {
     return found;
 }
 
+// A folder and its parents, or output_error naming it with the system's reason (never the
+// library's "filesystem error: cannot create directories: ...").
+void create_folders(const fs::path& folder) {
+    std::error_code ec;
+    fs::create_directories(folder, ec);
+    if (ec) throw output_error(folder.string(), "cannot create the folder: " + ec.message());
+}
+
 // Held for the whole run: a second batch on the same folder would interleave manifests. flock
 // ends with the process, however it ends, so a killed batch never leaves a stale lock.
 class folder_lock {
 public:
     explicit folder_lock(const fs::path& folder) {
-        fs::create_directories(folder);
+        create_folders(folder);
         const fs::path path = folder / lock_name;
         fd_ = ::open(path.c_str(), O_RDWR | O_CREAT | O_CLOEXEC, 0644);
-        if (fd_ < 0) throw error("cannot write " + path.string() + ": " + std::strerror(errno));
+        if (fd_ < 0) throw output_error(path.string(), std::strerror(errno));
         if (::flock(fd_, LOCK_EX | LOCK_NB) != 0) {
             ::close(fd_);
             throw usage_error("another rastrum batch is writing to " + folder.string() + " (it holds " + path.string() + ")");
@@ -65,8 +73,10 @@ void check_output_folder(const batch_plan& plan) {
     if (!fs::exists(folder, ec)) return;
     if (!fs::is_directory(folder, ec)) throw usage_error(plan.path + ": output " + plan.output_folder + " is not a folder");
     if (fs::exists(folder / manifest_name, ec)) return;
-    for (const auto& entry: fs::directory_iterator(folder)) {
-        if (entry.path().filename() != lock_name) {
+    fs::directory_iterator it(folder, ec);
+    if (ec) throw output_error(folder.string(), "cannot list the output folder: " + ec.message());
+    for (; it != fs::directory_iterator(); it.increment(ec)) {
+        if (it->path().filename() != lock_name) {
             throw usage_error(plan.path + ": output folder " + plan.output_folder +
                               " holds files but no manifest.json, so it is not a batch's output folder; name a new folder");
         }
@@ -177,8 +187,21 @@ void run_task(const batch_plan& plan, const batch_settings& settings, const inte
               const std::vector<std::string>& planned_outputs) {
     const fs::path out = output_folder_of(plan);
     task.started_utc = utc_now();
-    for (const auto& o: planned_outputs) fs::create_directories((out / o).parent_path());
+    for (const auto& o: planned_outputs) create_folders((out / o).parent_path());
     remove_output_temporaries(out, planned_outputs);
+    // The batch's outputs are its own files: something else put in their place (a FIFO would stop
+    // the task until someone read it, a link would send its results elsewhere) fails the task.
+    for (const auto& o: planned_outputs) {
+        std::error_code ec;
+        const auto status = fs::symlink_status(out / o, ec);
+        if (fs::exists(status) && !fs::is_regular_file(status)) {
+            task.finished_utc = utc_now();
+            task.status = task_status::failed;
+            task.error = (fs::path(plan.output_folder) / o).string() +
+                         " is not a regular file; the batch writes only files of its own there: move it away";
+            return;
+        }
+    }
     const child_result child = run_child(settings.program, task.command, plan.folder.string(), &stop);
     remove_output_temporaries(out, planned_outputs, std::to_string(child.pid) + "-");
     task.finished_utc = utc_now();

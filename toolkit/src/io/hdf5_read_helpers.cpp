@@ -1,6 +1,8 @@
 #include "hdf5_read_helpers.hpp"
 #include "loader_steps.hpp"
 
+#include <rastrum/format.hpp>
+
 #include <algorithm>
 #include <cmath>
 #include <cstring>
@@ -160,6 +162,18 @@ std::string library_message(const H5::Exception& e) {
     if (std::regex_search(message, m, truncated)) {
         return "truncated file: it holds " + m[1].str() + " bytes of the " + m[2].str() +
                " its header declares (an interrupted copy or download?)";
+    }
+    return message;
+}
+
+std::string write_failure(const H5::Exception& e, const std::string& written) {
+    std::string message = library_message(e);
+    // "file write failed: time = ..., filename = '...', ..., errno = 28, error message = 'No space left on device', ..."
+    static const std::regex system_reason(R"(error message = '([^']*)')");
+    std::smatch m;
+    if (std::regex_search(message, m, system_reason)) return m[1].str();
+    for (auto at = message.find(written); !written.empty() && at != std::string::npos; at = message.find(written)) {
+        message.replace(at, written.size(), "the file");
     }
     return message;
 }

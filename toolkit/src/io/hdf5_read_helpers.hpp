@@ -33,6 +33,10 @@ public:
 /// What the HDF5 library said about the failure behind `e`: the innermost message of its error
 /// stack when an error_capture kept one, else the exception's own text.
 std::string library_message(const H5::Exception& e);
+/// The same for a failed write to the file `written` (a temporary): the system's reason when the
+/// library quotes one ("No space left on device"), else its message with `written` left out, so
+/// that the user is never shown a temporary's name.
+std::string write_failure(const H5::Exception& e, const std::string& written);
 /// Drops a captured message, so a later exception is not explained by an earlier failure.
 void forget_library_message();
 

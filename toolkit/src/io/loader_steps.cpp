@@ -1,10 +1,10 @@
 #include "loader_steps.hpp"
 
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
 
 #include <algorithm>
 #include <cerrno>
-#include <charconv>
 #include <cstring>
 #include <filesystem>
 #include <fstream>
@@ -92,14 +92,6 @@ void settle_spike_times(std::vector<double>& times, const std::string& id,
         std::sort(times.begin(), times.end());
         warnings.push_back("unit " + id + ": spike times were not sorted; sorted them");
     }
-}
-
-std::string exact_number(double x) {
-    if (x == 0) x = 0;  // -0 and 0 are one number, and must be one label
-    char text[64];
-    const auto [end, failed] = std::to_chars(text, text + sizeof text, x);
-    if (failed != std::errc()) throw internal_error("exact_number: no room");
-    return std::string(text, end);
 }
 
 }  // namespace rastrum

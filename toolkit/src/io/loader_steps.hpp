@@ -28,8 +28,4 @@ std::vector<std::size_t> natural_order(const std::vector<std::string>& ids);
 void settle_spike_times(std::vector<double>& times, const std::string& id,
                         const std::function<place(std::size_t)>& place_of, std::vector<std::string>& warnings);
 
-/// "0.1" for 0.1: the shortest decimal text that reads back as the same double, for messages
-/// about times and for labels made of numbers.
-std::string exact_number(double x);
-
 }  // namespace rastrum

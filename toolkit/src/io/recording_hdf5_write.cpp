@@ -1,7 +1,8 @@
 #include "hdf5_read_helpers.hpp"
 
-#include <rastrum/atomic_file.hpp>
 #include <rastrum/errors.hpp>
+#include <rastrum/format.hpp>
+#include <rastrum/output_file.hpp>
 #include <rastrum/recording_hdf5.hpp>
 
 #include "loader_steps.hpp"
@@ -104,22 +105,21 @@ void check_times(const std::string& id, const std::vector<seconds>& times, const
 
 struct recording_hdf5_writer::state {
     hdf5::error_capture capture;
-    atomic_file out;
+    output_file& out;
     H5::H5File file;
     H5::Group units;
-    explicit state(const std::string& path): out(path) {}
+    explicit state(output_file& o): out(o) {}
 };
 
-recording_hdf5_writer::recording_hdf5_writer(const std::string& path,
-                                             const std::vector<std::pair<std::string, std::string>>& notes):
-    state_(std::make_unique<state>(path)) {
+recording_hdf5_writer::recording_hdf5_writer(output_file& out, const std::vector<std::pair<std::string, std::string>>& notes):
+    state_(std::make_unique<state>(out)) {
     guarded([&] {
         // The 1.8 file format checksums every piece of metadata, so a file damaged later is
         // refused by the library with a checksum error instead of being misread (HDF5 reading
         // corrupt unchecksummed headers can even crash). Readable by every HDF5 since 1.8.
         H5::FileAccPropList access;
         access.setLibverBounds(H5F_LIBVER_V18, H5F_LIBVER_LATEST);
-        state_->file = H5::H5File(state_->out.temporary_path(), H5F_ACC_TRUNC, H5::FileCreatPropList::DEFAULT, access);
+        state_->file = H5::H5File(out.path_to_write(), H5F_ACC_TRUNC, H5::FileCreatPropList::DEFAULT, access);
         root_attributes(state_->file, notes);
         state_->units = state_->file.createGroup("units", utf8_names());
     });
@@ -132,7 +132,7 @@ void recording_hdf5_writer::guarded(F&& f) {
     try {
         f();
     } catch (const H5::Exception& e) {
-        throw error("cannot write " + state_->out.final_path() + ": " + hdf5::library_message(e));
+        throw output_error(state_->out.target().path, hdf5::write_failure(e, state_->out.path_to_write()));
     }
 }
 
@@ -158,17 +158,22 @@ void recording_hdf5_writer::finish(const recording& rec) {
     });
     // Every object opened here is closed by now, so close() really closes the file.
     guarded([&] { state_->file.close(); });
-    state_->out.commit();
+}
+
+void write_recording_hdf5(const recording& rec, output_file& out, const std::vector<std::pair<std::string, std::string>>& notes) {
+    // A file that the reader would refuse is not worth writing.
+    validate(rec);
+    check_writable(rec);
+    recording_hdf5_writer writer(out, notes);
+    for (std::size_t u = 0; u < rec.units.size(); ++u) writer.add_unit(rec.units[u].id, *rec.spikes(u), rec.source);
+    writer.finish(rec);
 }
 
 void write_recording_hdf5(const recording& rec, const std::string& path,
                           const std::vector<std::pair<std::string, std::string>>& notes) {
-    // A file that the reader would refuse is not worth writing.
-    validate(rec);
-    check_writable(rec);
-    recording_hdf5_writer writer(path, notes);
-    for (std::size_t u = 0; u < rec.units.size(); ++u) writer.add_unit(rec.units[u].id, *rec.spikes(u), rec.source);
-    writer.finish(rec);
+    output_file out(output_target::replacing(path), output_file::content::by_path);
+    write_recording_hdf5(rec, out, notes);
+    finish_outputs({{&out, nullptr}});
 }
 
 }  // namespace rastrum

@@ -374,15 +374,18 @@ recording open_recording_mat(const std::string& path, const mat_choice& choice) 
         rec.stimulus = read_labels(src, labels);
         labels_name = labels.name;
         rec.origin.labels = {"", labels.name};
-        if (rec.stimulus.size() != rec.trial_start.size()) {
-            throw input_error(path, labels.name, std::to_string(rec.trial_start.size()) + " labels, one per trial",
-                              std::to_string(rec.stimulus.size()));
-        }
     } else {
         rec.origin.labels = {"", ""};
         rec.origin.labels_hint = "; name the variable holding one label per trial with --mat-stimulus VAR";
     }
+    // The trials first: with no trial starts, the labels cannot be matched to anything, and the
+    // message must name the start variable, not the labels.
     validate(rec, mat_places(rec, spikes.name, choice.unit_ids.value_or(""), cells, start.name, stop.name, labels_name));
+    // validate() reads no labels as "unlabelled", but an empty variable beside T trials is a mismatch.
+    if (choice.stimulus && rec.stimulus.size() != rec.trial_start.size()) {
+        throw input_error(path, labels_name, std::to_string(rec.trial_start.size()) + " labels, one per trial",
+                          std::to_string(rec.stimulus.size()));
+    }
     return rec;
 }
 

@@ -95,7 +95,7 @@ void write_series(const H5::H5File& file, const std::string& analysis, const cur
 }  // namespace
 
 void write_results_hdf5(const std::string& path, const nlohmann::ordered_json& result,
-                        const std::vector<curve_series>& curves) {
+                        const std::vector<curve_series>& curves, const std::string& shown_as) {
     const hdf5::error_capture capture;
     try {
         H5::FileAccPropList access;
@@ -117,7 +117,7 @@ void write_results_hdf5(const std::string& path, const nlohmann::ordered_json& r
         for (const auto& c: curves) write_series(file, analysis, c);
         file.close();
     } catch (const H5::Exception& e) {
-        throw error("cannot write " + path + ": " + hdf5::library_message(e));
+        throw output_error(shown_as.empty() ? path : shown_as, hdf5::write_failure(e, path));
     }
 }
 

@@ -1,10 +1,8 @@
-#include <rastrum/atomic_file.hpp>
 #include <rastrum/errors.hpp>
+#include <rastrum/output_file.hpp>
 #include <rastrum/recording_hdf5.hpp>
 #include <rastrum/synthetic_files.hpp>
 #include <rastrum/version.hpp>
-
-#include <fstream>
 
 namespace rastrum {
 
@@ -36,33 +34,25 @@ nlohmann::ordered_json synthetic_answers_json(const synthetic_recording& synth, 
     return j;
 }
 
-namespace {
-void write_answers(const atomic_file& answers, const synthetic_recording& synth, const nlohmann::ordered_json& parameters) {
-    std::ofstream out(answers.temporary_path());
-    out << synthetic_answers_json(synth, parameters).dump(2) << "\n";
-    if (!out) throw error("cannot write " + answers.final_path());
-}
-}  // namespace
-
 void write_synthetic(const synthetic_recording& synth, const std::string& recording_path,
                      const nlohmann::ordered_json& parameters) {
-    atomic_file answers(answers_path_for(recording_path));
-    write_answers(answers, synth, parameters);
-    write_recording_hdf5(synth.rec, recording_path);
-    answers.commit();
+    output_file recording(output_target::replacing(recording_path), output_file::content::by_path);
+    output_file answers(output_target::replacing(answers_path_for(recording_path)));
+    write_recording_hdf5(synth.rec, recording);
+    const std::string text = synthetic_answers_json(synth, parameters).dump(2) + "\n";
+    finish_outputs({{&recording, nullptr}, {&answers, &text}});
 }
 
-void make_and_write_synthetic(const std::function<synthetic_recording(const unit_ready&)>& make,
-                              const std::string& recording_path, const nlohmann::ordered_json& parameters) {
-    atomic_file answers(answers_path_for(recording_path));
-    recording_hdf5_writer writer(recording_path);
-    const synthetic_recording synth = make([&](recording& rec, std::size_t u) {
+void make_and_write_synthetic(const std::function<synthetic_recording(const unit_ready&)>& make, output_file& recording,
+                              output_file& answers, const nlohmann::ordered_json& parameters) {
+    recording_hdf5_writer writer(recording);
+    const synthetic_recording synth = make([&](rastrum::recording& rec, std::size_t u) {
         writer.add_unit(rec.units[u].id, rec.units[u].spike_times, rec.source);
         std::vector<seconds>().swap(rec.units[u].spike_times);  // written: let it go
     });
-    write_answers(answers, synth, parameters);
     writer.finish(synth.rec);
-    answers.commit();
+    const std::string text = synthetic_answers_json(synth, parameters).dump(2) + "\n";
+    finish_outputs({{&recording, nullptr}, {&answers, &text}});
 }
 
 }  // namespace rastrum
