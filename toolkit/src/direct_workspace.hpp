@@ -55,8 +55,8 @@ private:
     subset_tally noise_;
     subset_tally total_;
     subset_entropies e_;
-    std::vector<count_summary> summaries_;
-    std::vector<std::uint32_t> trial_counts_;       // letters x trials, for one-letter totals  // of every cell, while estimating
+    std::vector<count_summary> summaries_;     // of every cell, while estimating
+    std::vector<std::uint32_t> trial_counts_;  // letters x trials, for one-letter totals
 };
 
 struct direct_workspace::parts {
