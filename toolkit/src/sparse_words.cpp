@@ -63,18 +63,18 @@ void sparse_words::start(const sparse_letters& letters, word_code alphabet, int 
     }
     occupied_.clear();  // made when first needed: many estimates use 1-letter words only
 
-    // One letter: the words holding a spike are the non-zero letters, sorted by value.
-    position_start_.assign(positions_ + 1, 0);
-    by_position_.clear();
-    by_position_.reserve(letters.nonzero.size());
+    // One letter: the words holding a spike are the non-zero letters, position by position as the
+    // letters are held bin by bin (written in place: no growth checks per entry), sorted by value.
+    position_start_.assign(letters.bin_start.begin(), letters.bin_start.end());
+    by_position_.resize(letters.nonzero.size());
+    entry* out = by_position_.data();
     for (std::size_t t = 0; t < positions_; ++t) {
-        position_start_[t] = by_position_.size();
+        entry* const first = out;
         for (std::uint32_t i = letters.bin_start[t]; i < letters.bin_start[t + 1]; ++i) {
-            by_position_.push_back({letters.nonzero[i].value, letters.nonzero[i].trial, static_cast<std::uint32_t>(t)});
+            *out++ = {letters.nonzero[i].value, letters.nonzero[i].trial, static_cast<std::uint32_t>(t)};
         }
-        insertion_sort_by_code(by_position_.data() + position_start_[t], by_position_.data() + by_position_.size());
+        insertion_sort_by_code(first, out);
     }
-    position_start_[positions_] = by_position_.size();
     pooled_ready_ = false;  // made when first asked for: a 1-letter total can be counted per trial instead
 }
 
