@@ -131,9 +131,14 @@ void sparse_words::grow() {
 
     // Per position: words that gain their first spike (codes below the alphabet) go first, then the
     // old words with their new last letter. The fresh ones are kept aside for the pooled list too.
+    // Room for the longest lists this length can make (every old word kept, every spike fresh), taken
+    // while the lists are empty so that nothing is copied: growing them entry by entry re-allocated
+    // and copied them, and faulted in new pages, at every length where they outgrew the buffers kept.
     fresh_.clear();
+    fresh_.reserve(letters.nonzero.size());
     next_start_.resize(positions + 1);
     next_by_position_.clear();
+    next_by_position_.reserve(by_position_.size() + letters.nonzero.size());
     for (std::size_t t = 0; t < positions; ++t) {
         next_start_[t] = next_by_position_.size();
         const std::size_t b = t + shift;
@@ -156,6 +161,7 @@ void sparse_words::grow() {
     // Pooled: the fresh words sorted by their single letter, then the old words of the positions
     // that remain, re-sorted within runs.
     next_pooled_.clear();
+    next_pooled_.reserve(fresh_.size() + pooled_.size());
     next_pooled_.insert(next_pooled_.end(), fresh_.begin(), fresh_.end());
     counting_sort(next_pooled_.data(), next_pooled_.data() + next_pooled_.size(), a,
                   [](const entry& e) { return e.code; }, scratch_, bucket_);
