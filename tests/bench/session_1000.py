@@ -22,12 +22,17 @@ CPU time is user + system of the child process, from wait4 (os.wait4's resource 
 time; peak memory is the child's maximum resident set size from the same call. Every run uses
 `--threads 1`, so peak memory is per thread (plus the program and one unit's spikes).
 
+With --null-units K (and --reference-units 0) the runs with 19 rotated nulls, of both builds, are made
+on K and 2K spread units and extrapolated to the session along their line, as the reference's above:
+for a machine too busy to run them whole before a deadline; the table says which rows are extrapolated.
+
 With --parallel 2 two measurements run at a time, the reference's beside this build's (the CPU
 seconds of each are its own; a busy machine still inflates them, notes/performance.md says how much).
 Exit 1 when a comparison of numbers fails (the targets are reported, not enforced).
 
 Usage: tests/bench/session_1000.py --rastrum build/rastrum --reference-rastrum OLD/rastrum
-       [--reference-units 50] [--baseline-units 1] [--parallel 1] [--keep DIR [--reuse]] [--json OUT]
+       [--reference-units 50] [--null-units 0] [--baseline-units 1] [--parallel 1] [--keep DIR [--reuse]]
+       [--json OUT]
 """
 import argparse
 import concurrent.futures
@@ -79,8 +84,8 @@ def measure(command, folder, name, output, reuse):
 def plan(opt, folder):
     """Every measurement: name -> (command, output). Longest first, for --parallel."""
     s1000, w1 = f"{folder}/s1000.h5", f"{folder}/w1.h5"
-    k = opt.reference_units
-    on = {n: [a for u in spread_units(s1000, n, opt.rastrum) for a in ("--unit", u)] for n in (k, 2 * k) if k}
+    k, kn = opt.reference_units, opt.null_units
+    on = {n: [a for u in spread_units(s1000, n, opt.rastrum) for a in ("--unit", u)] for n in (k, 2 * k, kn, 2 * kn) if n}
     runs = {}
 
     def direct(name, build, recording, extra):
@@ -88,7 +93,13 @@ def plan(opt, folder):
         runs[name] = ([build, "direct", recording] + SWEEP + extra + ["--threads", "1", "--quiet", "--json", out], out)
 
     null = ["--null-rotations", "19"]
-    if k == 0:  # the reference on the whole session, beside this build's runs
+    if k == 0 and kn:  # with rotated nulls both builds on kn and 2 kn spread units
+        for n in (kn, 2 * kn):
+            direct(f"reference-null19-{n}", opt.reference_rastrum, s1000, null + on[n])
+            direct(f"s1000-null19-{n}", opt.rastrum, s1000, null + on[n])
+        direct("reference", opt.reference_rastrum, s1000, [])
+        direct("s1000", opt.rastrum, s1000, [])
+    elif k == 0:  # the reference on the whole session, beside this build's runs
         direct("reference-null19", opt.reference_rastrum, s1000, null)
         direct("s1000-null19", opt.rastrum, s1000, null)
         direct("reference", opt.reference_rastrum, s1000, [])
@@ -129,9 +140,15 @@ def line_through(t1, t2, n1, n, total):
     return t1 + per_unit * (total - n1), per_unit, t1 - per_unit * n1
 
 
-def table(m, k, kb, checks):
+def table(m, k, kb, checks, kn=0):
     """The Markdown table of the figures and the targets, and the derived figures."""
-    plain, null = m["s1000"]["cpu_s"], m["s1000-null19"]["cpu_s"]
+    plain = m["s1000"]["cpu_s"]
+    if kn:  # rotated nulls on kn and 2 kn spread units: extrapolated to the session for both builds
+        for build in ("reference", "s1000"):
+            t, unit, fixed = line_through(m[f"{build}-null19-{kn}"]["cpu_s"], m[f"{build}-null19-{2 * kn}"]["cpu_s"],
+                                          kn, 2 * kn, S1000_UNITS)
+            m[f"{build}-null19"] = dict(m[f"{build}-null19-{2 * kn}"], cpu_s=t, per_unit=unit, fixed=fixed)
+    null = m["s1000-null19"]["cpu_s"]
     if k == 0:
         ref_plain, ref_plain_unit, ref_plain_fixed = m["reference"]["cpu_s"], None, None
         ref_null, ref_null_unit, ref_null_fixed = m["reference-null19"]["cpu_s"], None, None
@@ -147,9 +164,9 @@ def table(m, k, kb, checks):
     def mark(ok):
         return "met" if ok else "**not met**"
 
-    def beside(ref, cand):
+    def beside(ref, cand, units=None):
         r, c = m[ref], m[cand]
-        units = "1,000" if k == 0 else str(2 * k)
+        units = units or ("1,000" if k == 0 else str(2 * k))
         return (f"reference / this build on the same {units} units: {r['cpu_s'] / c['cpu_s']:.2f}x CPU; peak memory "
                 f"{c['peak_mib']:.1f} MiB here, {r['peak_mib']:.1f} MiB in the reference, not above it (within 1%): "
                 f"{mark(c['peak_mib'] <= 1.01 * r['peak_mib'])}; same numbers: {checks[ref]}")
@@ -158,18 +175,31 @@ def table(m, k, kb, checks):
         ("session, W1 sweep, this build", "1,000", plain, "", m["s1000"]["peak_mib"],
          f"<= {CPU_TARGET_S:.0f} CPU-s: {mark(plain <= CPU_TARGET_S)}"
          + ("; " + beside("reference", "s1000") if k == 0 else "")),
-        ("session, W1 sweep, --null-rotations 19, this build", "1,000", null, "", m["s1000-null19"]["peak_mib"],
-         f"<= {NULL_FACTOR_TARGET:.0f}x the row above: {null / plain:.2f}x, {mark(null <= NULL_FACTOR_TARGET * plain)}"
-         + ("; " + beside("reference-null19", "s1000-null19") if k == 0 else "")),
     ]
-    if k == 0:
+    if kn:
         rows += [
+            ("session, W1 sweep, --null-rotations 19, this build", f"{kn} and {2 * kn} spread",
+             m[f"s1000-null19-{2 * kn}"]["cpu_s"], f"{null:.0f} (extrapolated)", m["s1000-null19"]["peak_mib"],
+             f"<= {NULL_FACTOR_TARGET:.0f}x the row above: {null / plain:.2f}x, {mark(null <= NULL_FACTOR_TARGET * plain)}; "
+             + beside(f"reference-null19-{2 * kn}", f"s1000-null19-{2 * kn}", 2 * kn)),
+            ("session, W1 sweep, reference build", "1,000", ref_plain, "", m["reference"]["peak_mib"], ""),
+            ("the same with --null-rotations 19, reference build", f"{kn} and {2 * kn} spread",
+             m[f"reference-null19-{2 * kn}"]["cpu_s"], f"{ref_null:.0f} (extrapolated)",
+             m["reference-null19"]["peak_mib"], f"reference / this build, whole session: {ref_null / null:.2f}x"),
+        ]
+    elif k == 0:
+        rows += [
+            ("session, W1 sweep, --null-rotations 19, this build", "1,000", null, "", m["s1000-null19"]["peak_mib"],
+             f"<= {NULL_FACTOR_TARGET:.0f}x the row above: {null / plain:.2f}x, {mark(null <= NULL_FACTOR_TARGET * plain)}; "
+             + beside("reference-null19", "s1000-null19")),
             ("session, W1 sweep, reference build", "1,000", ref_plain, "", m["reference"]["peak_mib"], ""),
             ("the same with --null-rotations 19, reference build", "1,000", ref_null, "",
              m["reference-null19"]["peak_mib"], ""),
         ]
     else:
         rows += [
+            ("session, W1 sweep, --null-rotations 19, this build", "1,000", null, "", m["s1000-null19"]["peak_mib"],
+             f"<= {NULL_FACTOR_TARGET:.0f}x the row above: {null / plain:.2f}x, {mark(null <= NULL_FACTOR_TARGET * plain)}"),
             ("session, reference build", f"{k} and {2 * k} spread", m["reference-2k"]["cpu_s"],
              f"{ref_plain:.0f} (extrapolated)", m["reference-2k"]["peak_mib"],
              f"reference / this build, whole session: {ref_plain / plain:.2f}x"),
@@ -209,6 +239,9 @@ def main():
     p.add_argument("--reference-rastrum", required=True, help="the build to compare with (e.g. main before a change)")
     p.add_argument("--reference-units", type=int, default=50,
                    help="K: the reference runs on K and 2K spread units of the session (0: on all of it)")
+    p.add_argument("--null-units", type=int, default=0,
+                   help="K: with --reference-units 0, the runs with rotated nulls (both builds) on K and 2K spread "
+                        "units, extrapolated to the session along their line (for a busy machine)")
     p.add_argument("--baseline-units", type=int, default=1, help="the NumPy baseline runs on K and 2K spread units of W1")
     p.add_argument("--parallel", type=int, default=1, help="measurements run at a time")
     p.add_argument("--keep", help="work in this folder and keep it (default: a temporary folder, removed)")
@@ -232,7 +265,9 @@ def main():
             m = {name: f.result() for name, f in futures.items()}
         out = {name: o for name, (_, o) in runs.items()}
         checks, details = {}, []
-        pairs = ((("reference", "s1000"), ("reference-null19", "s1000-null19")) if k == 0 else
+        kn = opt.null_units
+        null_pair = (f"reference-null19-{2 * kn}", f"s1000-null19-{2 * kn}") if kn else ("reference-null19", "s1000-null19")
+        pairs = ((("reference", "s1000"), null_pair) if k == 0 else
                  (("reference-2k", "s1000-2k"), ("reference-2k-null19", "s1000-2k-null19")))
         for ref, cand in pairs:
             ok, text = same_numbers(out[ref], out[cand])
@@ -242,7 +277,7 @@ def main():
         ok, text = baseline_agrees(out["w1"], out[f"baseline-{2 * kb}"])
         checks["baseline"] = "yes" if ok else "**NO**"
         details.append(f"baseline on {2 * kb} units against this build: {text}")
-        text, derived = table(m, k, kb, checks)
+        text, derived = table(m, k, kb, checks, kn)
     finally:
         if not opt.keep:
             shutil.rmtree(folder, ignore_errors=True)
