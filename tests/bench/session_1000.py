@@ -225,6 +225,10 @@ def table(m, k, kb, checks, kn=0):
     lines.append("")
     reference_line = "" if k == 0 else (f"reference: {ref_plain_unit:.3f} CPU-s per unit + {ref_plain_fixed:.1f} s "
                                         f"fixed, with rotations {ref_null_unit:.3f} + {ref_null_fixed:.1f}; ")
+    if kn:
+        reference_line += "; ".join(f"{what} with rotations: {m[name]['per_unit']:.3f} CPU-s per unit + "
+                                    f"{m[name]['fixed']:.1f} s fixed" for what, name in
+                                    (("this build", "s1000-null19"), ("reference", "reference-null19"))) + "; "
     lines.append(f"Extrapolated, not measured: along the line through the runs on the fewer and the more units "
                  f"({reference_line}baseline: {base_unit:.1f} per unit + {base_fixed:.1f} fixed). Peak memory of "
                  f"an extrapolated row is of its larger run.")
