@@ -564,7 +564,9 @@ TEST(Malformed, StimulusNotUtf8) {
 
 TEST(Malformed, UnitNameNotUtf8) {
     parts p;
-    p.units = {{"u1", {0.125}}, {"caf\xe9", {0.5}}};  // Latin-1 e-acute, not UTF-8
+    // Latin-1 e-acute: 0xe9 opens a 3-byte sequence in UTF-8 and is not followed by continuation bytes
+    // (RFC 3629, section 4), so the name is not UTF-8.
+    p.units = {{"u1", {0.125}}, {"caf\xe9", {0.5}}};
     const std::string path = write_file(p);
     const rastrum::input_error e = load_error(path);
     EXPECT_TRUE(contains(e.expected, "member name in UTF-8")) << e.what();
