@@ -8,13 +8,27 @@
 #include <filesystem>
 #include <fstream>
 #include <stdexcept>
+#include <unistd.h>
+#include <vector>
 
 namespace rastrum::testing {
 
 namespace {
 
+// The inputs' folder is this test program's own (named by its process): ctest runs the programs
+// that use these inputs in parallel, and a shared folder was emptied by one while another read it.
+struct removed_at_exit {
+    std::vector<std::string> folders;
+    ~removed_at_exit() {
+        std::error_code ec;
+        for (const auto& f: folders) std::filesystem::remove_all(f, ec);
+    }
+};
+
 std::string made_once(const std::string& name, const std::string& synth_args) {
-    const std::string folder = open_folder("output-slots-inputs-" + name);
+    const std::string folder = open_folder("output-slots-inputs-" + name + "-" + std::to_string(::getpid()));
+    static removed_at_exit removal;
+    removal.folders.push_back(folder);
     const std::string path = folder + "/" + name + ".h5";
     const auto r = run_rastrum("synth " + synth_args + " --out " + shell_quoted(path));
     if (r.exit_code != 0) throw std::runtime_error("cannot make " + path + ": " + r.err);

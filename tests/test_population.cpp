@@ -6,7 +6,10 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
+#include <cstdio>
+#include <cstdlib>
 #include <map>
 
 using namespace rastrum;
@@ -151,7 +154,10 @@ TEST_P(population_coverage, stiminfo_population_intervals_hold_the_exact_values)
     const double joint = exact_pair_information(first, second);
     const double sum = poisson_count_information(first) + poisson_count_information(second);
     std::map<std::string, int> held;
-    const int seeds = 20;
+    std::map<std::string, double> width;
+    // RASTRUM_COVERAGE_SEEDS=100 measures coverage more finely (notes/methods.md, section 8.3).
+    const char* asked = std::getenv("RASTRUM_COVERAGE_SEEDS");
+    const int seeds = asked ? std::max(20, std::atoi(asked)) : 20;
     for (int seed = 1; seed <= seeds; ++seed) {
         conditions_spec spec;
         spec.means = {first, second};
@@ -176,6 +182,7 @@ TEST_P(population_coverage, stiminfo_population_intervals_hold_the_exact_values)
         const auto& p = *records[2].population;
         auto count_if_held = [&](double low, double high, double exact, const char* what) {
             if (low <= exact && exact <= high) ++held[what];
+            width[what] += (high - low) / seeds;
         };
         count_if_held(p.low.joint, p.high.joint, joint, "joint");
         count_if_held(p.low.sum_single, p.high.sum_single, sum, "sum_single");
@@ -185,7 +192,9 @@ TEST_P(population_coverage, stiminfo_population_intervals_hold_the_exact_values)
     }
     for (const char* what: {"joint", "sum_single", "synergy", "independent", "shuffle_corrected"}) {
         RecordProperty(what, std::to_string(held[what]));
-        EXPECT_GE(held[what], 16) << what << " held the exact value in " << held[what] << " of " << seeds;
+        std::printf("coverage: %zu trials per condition, %s held in %d of %d, mean width %.4f bits\n", GetParam(), what,
+                    held[what], seeds, width[what]);
+        EXPECT_GE(held[what], seeds * 4 / 5) << what << " held the exact value in " << held[what] << " of " << seeds;
     }
 }
 INSTANTIATE_TEST_SUITE_P(trials_per_condition, population_coverage, ::testing::Values(50, 30, 20));

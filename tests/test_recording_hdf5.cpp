@@ -274,6 +274,33 @@ TEST(RoundTrip, UnitIdsInNaturalOrder) {
     EXPECT_EQ(ids, (std::vector<std::string>{"a", "u1", "u02", "u2", "u10"}));
 }
 
+// Many units (listed by one pass over the group's links): every one is found, in natural order,
+// in old-style and in new-style (indexed, "dense") groups. Expected order: common practice.
+TEST(RoundTrip, ManyUnitIdsListedOnceInNaturalOrder) {
+    parts p;
+    p.units.clear();
+    for (int i = 40; i >= 1; --i) p.units.push_back({"u" + std::to_string((i * 17) % 40 + 1), {0.1}});
+    std::vector<std::string> expected;
+    for (int i = 1; i <= 40; ++i) expected.push_back("u" + std::to_string(i));
+    for (const bool dense: {false, true}) {
+        const std::string path = scratch();
+        {
+            H5::FileAccPropList access;
+            if (dense) access.setLibverBounds(H5F_LIBVER_LATEST, H5F_LIBVER_LATEST);
+            H5::H5File f(path, H5F_ACC_TRUNC, H5::FileCreatPropList::DEFAULT, access);
+            f.createGroup("/units");
+            for (const auto& [id, times]: p.units) put_f64(f, "/units/" + id + "/spike_times", times);
+            f.createGroup("/trials");
+            put_f64(f, "/trials/start_time", *p.start);
+            put_f64(f, "/trials/stop_time", *p.stop);
+        }
+        const auto rec = rastrum::read_recording_hdf5(path);
+        std::vector<std::string> ids;
+        for (const auto& u: rec.units) ids.push_back(u.id);
+        EXPECT_EQ(ids, expected) << (dense ? "new-style group" : "old-style group");
+    }
+}
+
 TEST(RoundTrip, UnsortedSpikesAreSortedWithAWarning) {
     parts p;
     p.units = {{"u1", {0.125, 0.5}}, {"u2", {2.25, 0.25, 1.75}}};
@@ -533,6 +560,17 @@ TEST(Malformed, StimulusNotUtf8) {
     parts p;
     p.stimulus = {"a", "caf\xe9", "a"};  // Latin-1 e-acute, not UTF-8
     expect_error(write_file(p), "/trials/stimulus[1]", "UTF-8", "0xe9 at offset 3");
+}
+
+TEST(Malformed, UnitNameNotUtf8) {
+    parts p;
+    // Latin-1 e-acute: 0xe9 opens a 3-byte sequence in UTF-8 and is not followed by continuation bytes
+    // (RFC 3629, section 4), so the name is not UTF-8.
+    p.units = {{"u1", {0.125}}, {"caf\xe9", {0.5}}};
+    const std::string path = write_file(p);
+    const rastrum::input_error e = load_error(path);
+    EXPECT_TRUE(contains(e.expected, "member name in UTF-8")) << e.what();
+    EXPECT_TRUE(contains(e.found, "0xe9 at offset 3")) << e.what();
 }
 
 TEST(Malformed, FloatStimulus) {

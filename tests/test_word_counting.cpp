@@ -178,6 +178,46 @@ TEST(subset_tally, one_word_per_trial_with_few_listed_words) {
     }
 }
 
+// One histogram given as each trial's count of each word (the 1-letter words pooled over positions)
+// must count exactly as its list of occurrences sorted by code: words seen 0, 1, 2, 3 and many times,
+// with a table limit that sends large counts to the direct sums, bit for bit (the same sums in the
+// same order; add_histogram itself is checked against maps above).
+TEST(subset_tally, per_trial_counts_equal_the_list_of_occurrences) {
+    random_stream rng(12);
+    const std::size_t trials = 40;
+    const auto splits = make_nested_splits(trials, 8, 4);
+    const std::size_t words = 7;
+    const std::vector<count> totals{0, 1, 2, 3, 60, 900, 5};
+    std::vector<std::uint32_t> counts(words * trials, 0);
+    for (std::size_t w = 0; w < words; ++w) {
+        for (count i = 0; i < totals[w]; ++i) ++counts[w * trials + rng.below(trials)];
+    }
+    const count per_trial = 50;
+    std::vector<sparse_words::entry> occurrences;
+    for (std::size_t w = 0; w < words; ++w) {
+        for (std::size_t k = 0; k < trials; ++k) {
+            for (std::uint32_t j = 0; j < counts[w * trials + k]; ++j) {
+                occurrences.push_back({w + 1, static_cast<std::uint32_t>(k), 0});
+            }
+        }
+    }
+    for (const count dense_limit: {count{5}, count{4096}}) {
+        subset_tally listed(splits, trials, dense_limit), per_trial_counts(splits, trials, dense_limit);
+        listed.add_histogram(occurrences.data(), occurrences.data() + occurrences.size(), per_trial);
+        per_trial_counts.add_trial_counts(counts.data(), words, per_trial);
+        std::vector<count_summary> a, b;
+        listed.summaries(a);
+        per_trial_counts.summaries(b);
+        ASSERT_EQ(a.size(), b.size());
+        for (std::size_t c = 0; c < a.size(); ++c) {
+            EXPECT_EQ(a[c].samples, b[c].samples) << c;
+            EXPECT_EQ(a[c].distinct, b[c].distinct) << c;
+            EXPECT_EQ(a[c].sum_n_log2_n, b[c].sum_n_log2_n) << c;
+            EXPECT_EQ(a[c].sum_leave_one_out, b[c].sum_leave_one_out) << c;
+        }
+    }
+}
+
 // Counts of codes against a map of each code to its count (common practice), in the map's order, for
 // small spaces (the dense table), large and extreme ones (sorting), one code and none.
 TEST(counts_of_codes, equal_a_map_in_code_order) {

@@ -44,6 +44,8 @@ public:
 private:
     // Counts up to this are tabulated for the pooled words; larger ones are rare and summed directly.
     static constexpr count pooled_dense_limit = 4096;
+    // One-letter words are counted per trial (a table of letters x trials) up to this alphabet.
+    static constexpr word_code letters_counted_per_trial = 64;
 
     void estimate_cells(std::array<std::vector<double>, subset_estimator_count>& out, subset_tally& tally,
                         double histograms);
@@ -54,7 +56,8 @@ private:
     subset_tally noise_;
     subset_tally total_;
     subset_entropies e_;
-    std::vector<count_summary> summaries_;  // of every cell, while estimating
+    std::vector<count_summary> summaries_;     // of every cell, while estimating
+    std::vector<std::uint32_t> trial_counts_;  // letters x trials, for one-letter totals
 };
 
 struct direct_workspace::parts {

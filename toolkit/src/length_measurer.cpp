@@ -34,11 +34,17 @@ void length_measurer::measure_noise(const sparse_words& words, subset_entropies&
     estimate_cells(e.noise, noise_, static_cast<double>(positions));
 }
 
-// Words pooled over every start position and every trial of each subset.
+// Words pooled over every start position and every trial of each subset. One-letter words are counted
+// per trial (no list of every occurrence sorted by code is needed for them), when the letters are few.
 void length_measurer::measure_total(const sparse_words& words, subset_entropies& e) {
-    const auto& pooled = words.pooled();
     total_.clear();
-    total_.add_histogram(pooled.data(), pooled.data() + pooled.size(), words.positions());
+    if (words.letters() == 1 && words.alphabet() <= letters_counted_per_trial) {
+        words.letter_counts_per_trial(trial_counts_);
+        total_.add_trial_counts(trial_counts_.data(), static_cast<std::size_t>(words.alphabet() - 1), words.positions());
+    } else {
+        const auto& pooled = words.pooled();
+        total_.add_histogram(pooled.data(), pooled.data() + pooled.size(), words.positions());
+    }
     estimate_cells(e.total, total_, 1.0);
     const count_summary& all = summaries_[0];  // the whole set, as estimate_cells left them
     e.samples = all.samples;

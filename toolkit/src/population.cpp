@@ -126,10 +126,16 @@ double independent_units::information(const std::vector<std::size_t>& use) {
     // in lexicographic order (first unit slowest), and the pooled P_ind(r) = sum_t p(t) P_ind(r | t),
     // summed over t in increasing order; conditions where some r_c was not seen add exact zeros.
     // Products are formed left to right from 1. This is the order in which the sums were once taken
-    // over maps keyed by the response vectors, so the value is the same to the last bit.
+    // over maps keyed by the response vectors, so the value is the same to the last bit. The partial
+    // products of the first units, for every condition at once, are kept while their digits stay.
+    std::vector<std::size_t> live;  // the conditions with trials, increasing
+    for (std::size_t t = 0; t < conditions; ++t) {
+        if (p_s[t] != 0) live.push_back(t);
+    }
+    const std::size_t width = live.size();
+    std::vector<double> prefix(m * width);  // row u: prod_{c <= u} P(r_c | live[j])
     double info = 0;
     std::vector<std::size_t> digit(m);
-    std::vector<std::uint32_t> at(m);
     for (std::size_t s = 0; s < conditions; ++s) {
         if (p_s[s] == 0) continue;
         double size = 1;
@@ -137,24 +143,27 @@ double independent_units::information(const std::vector<std::size_t>& use) {
             size *= static_cast<double>(seen_[u][s].size());
         }
         if (size == 0) continue;
+        const std::size_t own = static_cast<std::size_t>(std::find(live.begin(), live.end(), s) - live.begin());
         std::fill(digit.begin(), digit.end(), 0);
+        std::size_t from = 0;  // the first unit whose digit changed
         while (true) {
-            double p = 1.0;
-            for (std::size_t u = 0; u < m; ++u) {
-                at[u] = seen_[u][s][digit[u]];
-                p = p * p_[u][s * distinct_[u] + at[u]];
+            for (std::size_t u = from; u < m; ++u) {
+                const double* column = p_[u].data() + seen_[u][s][digit[u]];
+                const std::size_t stride = distinct_[u];
+                double* row = &prefix[u * width];
+                for (std::size_t j = 0; j < width; ++j) {
+                    row[j] = (u == 0 ? 1.0 : prefix[(u - 1) * width + j]) * column[live[j] * stride];
+                }
             }
+            const double* q = &prefix[(m - 1) * width];
             double pooled = 0;
-            for (std::size_t t = 0; t < conditions; ++t) {
-                if (p_s[t] == 0) continue;
-                double q = 1.0;
-                for (std::size_t u = 0; u < m; ++u) q = q * p_[u][t * distinct_[u] + at[u]];
-                pooled += p_s[t] * q;
-            }
+            for (std::size_t j = 0; j < width; ++j) pooled += p_s[live[j]] * q[j];
+            const double p = q[own];
             if (p > 0) info += p_s[s] * p * std::log2(p / pooled);
             std::size_t u = m;
             while (u > 0 && ++digit[u - 1] == seen_[u - 1][s].size()) digit[--u] = 0;
             if (u == 0) break;
+            from = u - 1;
         }
     }
     return info;

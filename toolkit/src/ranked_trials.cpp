@@ -6,14 +6,17 @@ namespace rastrum::detail {
 
 ranked_trials::ranked_trials(const std::vector<std::uint32_t>& condition, std::size_t conditions,
                              const std::vector<word_code>& response):
-    condition_(condition), conditions_(conditions), rank_(response.size()), in_condition_(conditions, 0) {
-    std::vector<word_code> codes = response;
-    std::sort(codes.begin(), codes.end());
-    codes.erase(std::unique(codes.begin(), codes.end()), codes.end());
-    distinct_ = codes.size();
-    for (std::size_t k = 0; k < response.size(); ++k) {
-        rank_[k] = static_cast<std::uint32_t>(std::lower_bound(codes.begin(), codes.end(), response[k]) - codes.begin());
+    condition_(condition), conditions_(conditions), rank_(response.size()), in_condition_(conditions, 0),
+    repeated_in_(conditions) {
+    // The trials in order of their codes; each run of equal codes gets the next rank.
+    std::vector<std::pair<word_code, std::uint32_t>> by_code(response.size());
+    for (std::size_t k = 0; k < response.size(); ++k) by_code[k] = {response[k], static_cast<std::uint32_t>(k)};
+    std::sort(by_code.begin(), by_code.end());
+    for (std::size_t i = 0; i < by_code.size(); ++i) {
+        if (i > 0 && by_code[i].first != by_code[i - 1].first) ++distinct_;
+        rank_[by_code[i].second] = static_cast<std::uint32_t>(distinct_);
     }
+    if (!by_code.empty()) ++distinct_;
     pooled_.assign(distinct_, 0);
     by_condition_.assign(conditions_ * distinct_, 0);
     // The ranks each condition holds: a subset's table of condition s is non-zero only there.
@@ -37,32 +40,37 @@ count_summary ranked_trials::summary_clearing(std::uint32_t* counts, std::size_t
 }
 
 namespace {
-// Only the plug-in entropy is needed here: the jackknife's sum (a log per bin) is skipped. `visit`
-// calls its argument on each entry of the table that may be non-zero, in increasing order; each is
-// cleared as it is read, so the table is zero again afterwards.
-template <class Visit>
-double plugin_clearing_visited(std::uint32_t* counts, Visit visit) {
-    count samples = 0;
+// Only the plug-in entropy is needed here: the jackknife's sum (a log per bin) is skipped. Entries
+// holding one sample add nothing to sum n log2 n, so the sum runs over the entries that reached two
+// samples (`repeated`), in increasing order as a scan of the table would: sorted when they are few,
+// the table scanned otherwise (`scan` calls its argument on each entry that may be non-zero, in
+// increasing order). Either way the same terms are added in the same order.
+template <class Scan>
+double plugin_of_repeated(const std::uint32_t* counts, std::vector<std::uint32_t>& repeated, count samples,
+                          std::size_t scan_size, Scan scan) {
     double sum_n_log2_n = 0;
-    visit([&](std::size_t r) {
-        const count n = counts[r];
-        if (n == 0) return;
-        samples += n;
-        if (n > 1) sum_n_log2_n += n_log2_n(n);
-        counts[r] = 0;
-    });
+    if (repeated.size() * 8 < scan_size) {
+        std::sort(repeated.begin(), repeated.end());
+        for (const std::uint32_t r: repeated) sum_n_log2_n += n_log2_n(counts[r]);
+    } else {
+        scan([&](std::size_t r) {
+            if (counts[r] > 1) sum_n_log2_n += n_log2_n(counts[r]);
+        });
+    }
+    repeated.clear();
     return plugin_entropy(mean_summary{static_cast<double>(samples), 0, sum_n_log2_n, 0});
 }
 
-double plugin_clearing(std::uint32_t* counts, std::size_t size) {
-    return plugin_clearing_visited(counts, [size](auto&& read) {
+double plugin_of_repeated(const std::uint32_t* counts, std::vector<std::uint32_t>& repeated, count samples, std::size_t size) {
+    return plugin_of_repeated(counts, repeated, samples, size, [size](auto&& read) {
         for (std::size_t r = 0; r < size; ++r) read(r);
     });
 }
 
-/// The same over the entries `at` (increasing) of a table that is zero elsewhere.
-double plugin_clearing(std::uint32_t* counts, const std::vector<std::uint32_t>& at) {
-    return plugin_clearing_visited(counts, [&at](auto&& read) {
+/// The same over a table that is zero outside the entries `at` (increasing).
+double plugin_of_repeated(const std::uint32_t* counts, std::vector<std::uint32_t>& repeated, count samples,
+                          const std::vector<std::uint32_t>& at) {
+    return plugin_of_repeated(counts, repeated, samples, at.size(), [&at](auto&& read) {
         for (const std::uint32_t r: at) read(r);
     });
 }
@@ -74,9 +82,14 @@ double ranked_trials::information_of(const std::uint32_t* condition, const std::
     // order of (N_s / N) H(R|s).
     auto take = [&](std::size_t k) {
         const std::uint32_t r = rank_[k], s = condition[k];
-        ++pooled_[r];
-        ++by_condition_[s * distinct_ + r];
+        if (++pooled_[r] == 2) repeated_pooled_.push_back(r);
+        if (++by_condition_[s * distinct_ + r] == 2) repeated_in_[s].push_back(r);
         ++in_condition_[s];
+    };
+    // Every table is zero again afterwards: the entries the trials touched are cleared.
+    auto clear = [&](std::size_t k) {
+        pooled_[rank_[k]] = 0;
+        by_condition_[condition[k] * distinct_ + rank_[k]] = 0;
     };
     if (use.empty()) {
         for (std::size_t k = 0; k < rank_.size(); ++k) take(k);
@@ -87,13 +100,20 @@ double ranked_trials::information_of(const std::uint32_t* condition, const std::
     double noise = 0;
     for (std::size_t s = 0; s < conditions_; ++s) {
         if (in_condition_[s] == 0) continue;
-        std::uint32_t* table = &by_condition_[s * distinct_];
+        const std::uint32_t* table = &by_condition_[s * distinct_];
         noise += static_cast<double>(in_condition_[s]) / static_cast<double>(trials) *
-                 (own_labels ? plugin_clearing(table, ranks_in_[s]) : plugin_clearing(table, distinct_));
+                 (own_labels ? plugin_of_repeated(table, repeated_in_[s], in_condition_[s], ranks_in_[s])
+                             : plugin_of_repeated(table, repeated_in_[s], in_condition_[s], distinct_));
         in_condition_[s] = 0;
     }
+    const double pooled = trials == 0 ? 0 : plugin_of_repeated(pooled_.data(), repeated_pooled_, trials, distinct_);
+    if (use.empty()) {
+        for (std::size_t k = 0; k < rank_.size(); ++k) clear(k);
+    } else {
+        for (std::size_t k: use) clear(k);
+    }
     if (trials == 0) return 0;
-    return plugin_clearing(pooled_.data(), distinct_) - noise;
+    return pooled - noise;
 }
 
 double ranked_trials::plugin_information(const std::vector<std::size_t>& use) { return information_of(condition_.data(), use); }
@@ -103,8 +123,12 @@ double ranked_trials::plugin_information_relabelled(const std::vector<std::uint3
 }
 
 double ranked_trials::plugin_entropy_of(const std::vector<std::uint32_t>& order, std::size_t from, std::size_t to) {
-    for (std::size_t i = from; i < to; ++i) ++pooled_[rank_[order[i]]];
-    return plugin_clearing(pooled_.data(), distinct_);
+    for (std::size_t i = from; i < to; ++i) {
+        if (++pooled_[rank_[order[i]]] == 2) repeated_pooled_.push_back(rank_[order[i]]);
+    }
+    const double h = plugin_of_repeated(pooled_.data(), repeated_pooled_, to - from, distinct_);
+    for (std::size_t i = from; i < to; ++i) pooled_[rank_[order[i]]] = 0;
+    return h;
 }
 
 }  // namespace rastrum::detail

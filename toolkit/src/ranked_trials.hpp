@@ -39,6 +39,9 @@ private:
     std::vector<std::uint32_t> pooled_, by_condition_;  // distinct_ and conditions_ x distinct_ counts
     std::vector<count> in_condition_;
     std::vector<std::vector<std::uint32_t>> ranks_in_;  // per condition: the ranks its trials hold, increasing
+    // The entries of the pooled and each condition's table that reached two samples in this subset.
+    std::vector<std::uint32_t> repeated_pooled_;
+    std::vector<std::vector<std::uint32_t>> repeated_in_;
 };
 
 }  // namespace rastrum::detail

@@ -63,21 +63,32 @@ void sparse_words::start(const sparse_letters& letters, word_code alphabet, int 
     }
     occupied_.clear();  // made when first needed: many estimates use 1-letter words only
 
-    // One letter: the words holding a spike are the non-zero letters, sorted by value.
-    position_start_.assign(positions_ + 1, 0);
-    by_position_.clear();
-    by_position_.reserve(letters.nonzero.size());
+    // One letter: the words holding a spike are the non-zero letters, position by position as the
+    // letters are held bin by bin (written in place: no growth checks per entry), sorted by value.
+    position_start_.assign(letters.bin_start.begin(), letters.bin_start.end());
+    by_position_.resize(letters.nonzero.size());
+    entry* out = by_position_.data();
     for (std::size_t t = 0; t < positions_; ++t) {
-        position_start_[t] = by_position_.size();
+        entry* const first = out;
         for (std::uint32_t i = letters.bin_start[t]; i < letters.bin_start[t + 1]; ++i) {
-            by_position_.push_back({letters.nonzero[i].value, letters.nonzero[i].trial, static_cast<std::uint32_t>(t)});
+            *out++ = {letters.nonzero[i].value, letters.nonzero[i].trial, static_cast<std::uint32_t>(t)};
         }
-        insertion_sort_by_code(by_position_.data() + position_start_[t], by_position_.data() + by_position_.size());
+        insertion_sort_by_code(first, out);
     }
-    position_start_[positions_] = by_position_.size();
+    pooled_ready_ = false;  // made when first asked for: a 1-letter total can be counted per trial instead
+}
+
+void sparse_words::letter_counts_per_trial(std::vector<std::uint32_t>& counts) const {
+    if (letters_ != 1) throw internal_error("sparse_words::letter_counts_per_trial after growing");
+    counts.assign(static_cast<std::size_t>(alphabet_ - 1) * trials_, 0);
+    for (const auto& e: letters_of_->nonzero) ++counts[(e.value - 1) * trials_ + e.trial];
+}
+
+void sparse_words::make_pooled() const {
     pooled_ = by_position_;
     counting_sort(pooled_.data(), pooled_.data() + pooled_.size(), alphabet_,
                   [](const entry& e) { return e.code; }, scratch_, bucket_);
+    pooled_ready_ = true;
 }
 
 void sparse_words::mark_occupied() {
@@ -112,6 +123,7 @@ void sparse_words::sort_runs_by_last_letter(entry* first, entry* last) {
 void sparse_words::grow() {
     if (letters_ >= max_letters_ || positions_ <= 1) throw internal_error("sparse_words::grow past its limit");
     if (occupied_.empty()) mark_occupied();
+    if (!pooled_ready_) make_pooled();
     const sparse_letters& letters = *letters_of_;
     const std::size_t shift = static_cast<std::size_t>(letters_);  // position t gains the letter at bin t + L
     const std::size_t positions = positions_ - 1;
@@ -119,9 +131,14 @@ void sparse_words::grow() {
 
     // Per position: words that gain their first spike (codes below the alphabet) go first, then the
     // old words with their new last letter. The fresh ones are kept aside for the pooled list too.
+    // Room for the longest lists this length can make (every old word kept, every spike fresh), taken
+    // while the lists are empty so that nothing is copied: growing them entry by entry re-allocated
+    // and copied them, and faulted in new pages, at every length where they outgrew the buffers kept.
     fresh_.clear();
+    fresh_.reserve(letters.nonzero.size());
     next_start_.resize(positions + 1);
     next_by_position_.clear();
+    next_by_position_.reserve(by_position_.size() + letters.nonzero.size());
     for (std::size_t t = 0; t < positions; ++t) {
         next_start_[t] = next_by_position_.size();
         const std::size_t b = t + shift;
@@ -144,6 +161,7 @@ void sparse_words::grow() {
     // Pooled: the fresh words sorted by their single letter, then the old words of the positions
     // that remain, re-sorted within runs.
     next_pooled_.clear();
+    next_pooled_.reserve(fresh_.size() + pooled_.size());
     next_pooled_.insert(next_pooled_.end(), fresh_.begin(), fresh_.end());
     counting_sort(next_pooled_.data(), next_pooled_.data() + next_pooled_.size(), a,
                   [](const entry& e) { return e.code; }, scratch_, bucket_);

@@ -103,6 +103,11 @@ double standard_deviation(const std::vector<double>& values) {
     return std::sqrt(ss / static_cast<double>(values.size() - 1));
 }
 
+/// The splits of each extrapolation inside a bootstrap resample of a population (the estimate itself
+/// keeps settings.splits). Fewer splits make each resample's value noisier, never less so, so the
+/// spread can only grow; measured in notes/methods.md, section 8.3.
+constexpr unsigned population_bootstrap_splits = 2;
+
 /// `joint_limit`: the joint responses the independent-units information may hold (check_stiminfo_memory).
 population_record population_of(const std::vector<labelled_responses>& units, const stiminfo_request& q,
                                 const info_settings& settings, std::size_t joint_limit) {
@@ -123,9 +128,11 @@ population_record population_of(const std::vector<labelled_responses>& units, co
     const auto members = trials_by_condition(units[0]);
     random_stream rng(derive_seed(settings.seed, {0xb0b0ULL}));
     std::vector<population_values> boot;
+    info_settings resampled = settings;
+    resampled.splits = std::min(settings.splits, population_bootstrap_splits);
     for (unsigned b = 0; b < q.bootstrap; ++b) {
         boot.push_back(population_information(resample_within_conditions(units, members, rng), q.population_estimator,
-                                              settings, q.within_condition_shuffles, joint_limit));
+                                              resampled, q.within_condition_shuffles, joint_limit));
     }
     for (auto field: population_fields) {
         std::vector<double> values;

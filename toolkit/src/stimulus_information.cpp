@@ -251,6 +251,8 @@ double extrapolate_over_trials(const std::vector<std::uint32_t>& condition, std:
 double response_entropy(const std::vector<word_code>& responses, double alphabet, info_estimator estimator,
                         const info_settings& settings) {
     if (responses.empty()) return 0;
+    // Extrapolation ranks the responses itself: no histogram of the whole set is needed.
+    if (estimator == info_estimator::quadratic_extrapolation) return extrapolated_entropy(responses, settings);
     const std::vector<count> c = counts_of_codes(responses);
     const count_summary s = summarize_counts(c);
     switch (estimator) {

@@ -348,6 +348,48 @@ void subset_tally::add_histogram(const entry* first, const entry* last, count pe
     per_trial_ += per_trial;
 }
 
+void subset_tally::add_trial_counts(const std::uint32_t* counts, std::size_t words, count per_trial) {
+    const std::size_t splits = splits_count_;
+    listed_.assign(trials_, 0);
+    // Per eighth of every split, from each trial's counts.
+    auto eighths_of = [&](const std::uint32_t* per_trial_counts) {
+        std::fill(eighths_.begin(), eighths_.end(), 0u);
+        for (std::size_t k = 0; k < trials_; ++k) {
+            const std::uint32_t c = per_trial_counts[k];
+            if (c == 0) continue;
+            for (std::size_t s = 0; s < splits; ++s) eighths_[lane_index_[k * splits + s]] += c;
+        }
+    };
+    // Words in code order, as add_histogram meets them (words seen more than the table holds are
+    // summed in that order).
+    for (std::size_t w = 0; w < words; ++w) {
+        const std::uint32_t* c = counts + w * trials_;
+        count occurrences = 0;
+        for (std::size_t k = 0; k < trials_; ++k) {
+            occurrences += c[k];
+            listed_[k] += c[k];
+        }
+        if (occurrences <= 1) continue;  // seen once in every subset holding it: found from the sample sizes
+        if (occurrences <= static_cast<count>(few_occurrences)) {
+            entry few[few_occurrences];
+            std::size_t n = 0;
+            for (std::size_t k = 0; k < trials_ && n < occurrences; ++k) {
+                for (std::uint32_t j = 0; j < c[k]; ++j) few[n++] = {w + 1, static_cast<std::uint32_t>(k), 0};
+            }
+            tally_few(few, few + n);
+            continue;
+        }
+        eighths_of(c);
+        tally(eighths_.data());
+    }
+    eighths_of(listed_.data());
+    for (std::size_t i = 0; i < lanes_; ++i) {
+        eighths_[i] = static_cast<std::uint32_t>(per_trial * eighth_size_[i] - eighths_[i]);
+    }
+    tally(eighths_.data());
+    per_trial_ += per_trial;
+}
+
 template <typename Visit>
 void subset_tally::for_each_row(Visit&& visit) const {
     const count dense_end = std::min(largest_, wide_row_);

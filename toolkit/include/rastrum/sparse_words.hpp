@@ -48,8 +48,17 @@ public:
     /// The words at start position t that hold a spike, sorted by code.
     const entry* begin_at(std::size_t t) const { return by_position_.data() + position_start_[t]; }
     const entry* end_at(std::size_t t) const { return by_position_.data() + position_start_[t + 1]; }
-    /// Every word that holds a spike, at every position and in every trial, sorted by code.
-    const std::vector<entry>& pooled() const { return pooled_; }
+    /// At one letter: each trial's count of each non-zero letter over the bins, counts[(v - 1) * trials + k]
+    /// for v = 1 .. alphabet - 1 (the 1-letter words pooled over positions, as subset_tally::add_trial_counts
+    /// takes them). A rotation of the trials leaves these unchanged.
+    void letter_counts_per_trial(std::vector<std::uint32_t>& counts) const;
+
+    /// Every word that holds a spike, at every position and in every trial, sorted by code. Made from
+    /// the positions' lists when first asked for at one letter.
+    const std::vector<entry>& pooled() const {
+        if (!pooled_ready_) make_pooled();
+        return pooled_;
+    }
 
 private:
     static constexpr std::uint32_t no_previous = 0xffffffffu;
@@ -67,6 +76,7 @@ private:
         return letters_of_->largest <= 1 ? 1 : letters_of_->at(b, trial);
     }
     void mark_occupied();
+    void make_pooled() const;
 
     const sparse_letters* letters_of_ = nullptr;
     word_code alphabet_ = 2;
@@ -79,15 +89,16 @@ private:
     std::vector<std::uint64_t> occupied_;   // bin-major bits: trial k of bin b holds a spike
     std::vector<std::size_t> position_start_;
     std::vector<entry> by_position_;
-    std::vector<entry> pooled_;
+    mutable std::vector<entry> pooled_;
+    mutable bool pooled_ready_ = false;
     // Reused between lengths and starts so that growing allocates nothing once the lists stop growing.
     std::vector<std::uint32_t> last_spike_;
     std::vector<std::size_t> next_start_;
     std::vector<entry> next_by_position_;
     std::vector<entry> next_pooled_;
     std::vector<entry> fresh_;
-    std::vector<entry> scratch_;
-    std::vector<std::size_t> bucket_;
+    mutable std::vector<entry> scratch_;
+    mutable std::vector<std::size_t> bucket_;
 };
 
 }  // namespace rastrum

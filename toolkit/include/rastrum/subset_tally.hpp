@@ -46,6 +46,12 @@ public:
     /// histograms are summed (the noise entropy's positions).
     void add_histogram(const sparse_words::entry* first, const sparse_words::entry* last, count per_trial);
 
+    /// The same histogram given as each trial's count of each listed word: counts[(w - 1) * trials + k]
+    /// for the listed words w = 1 .. words in code order (absent ones have zeros), the all-zero word
+    /// taking the rest of each trial's `per_trial`. Counts the same as add_histogram of the
+    /// occurrences (the 1-letter words pooled over positions need no list of occurrences this way).
+    void add_trial_counts(const std::uint32_t* counts, std::size_t words, count per_trial);
+
     /// Summary of the summed histograms of subset `subset_index(level, block)` of split `split`.
     count_summary summary(std::size_t split, int subset);
     /// The same for every subset of every split at once (out[split * 15 + subset]), in one pass over
