@@ -139,12 +139,29 @@ TEST(letter_chain, silence_and_the_enumeration_limit) {
     EXPECT_DOUBLE_EQ(e.noise, 0.0);
 }
 
-// The empirical-Bayes weight by hand: bins at 0 of 100 and 50 of 100 spikes have pooled mean 1/4,
-// observed variance (1/16 + 1/16) / 2, binomial part (3/16) / 100; so the between-bin variance is
-// 0.060625 and the weight (3/16) / 0.060625 - 1 (method of moments for a beta-binomial, common
-// practice). Bins that differ by less than their sampling noise get an infinite weight.
-TEST(letter_chain, empirical_weight_by_hand) {
-    EXPECT_NEAR(letter_chain::empirical_weight({0, 50}, {100, 100}), 0.1875 / 0.060625 - 1, 1e-12);
-    EXPECT_TRUE(std::isinf(letter_chain::empirical_weight({1, 3}, {10, 10})));
-    EXPECT_TRUE(std::isinf(letter_chain::empirical_weight({5}, {10})));
+// The variance beyond the noise by hand: bins at 0 of 100 and 50 of 100 spikes have pooled mean
+// 1/4, observed variance (1/16 + 1/16) / 2 and binomial part (3/16) / 100, so 0.060625 (method of
+// moments, common practice). Bins that differ by less than their sampling noise give 0.
+TEST(letter_chain, variance_beyond_noise_by_hand) {
+    EXPECT_NEAR(letter_chain::variance_beyond_noise({0, 50}, {100, 100}), 0.060625, 1e-12);
+    EXPECT_EQ(letter_chain::variance_beyond_noise({1, 3}, {10, 10}), 0.0);
+    EXPECT_EQ(letter_chain::variance_beyond_noise({5}, {10}), 0.0);
+}
+
+// With the default fit, a model drawn from a known chain and fitted again keeps about the known
+// chain's variance of spike probabilities across bins: the between-bin spread of the refitted
+// model's probabilities matches the one the data show beyond their noise.
+TEST(letter_chain, the_default_fit_keeps_the_spread_the_data_show) {
+    const letter_matrix m = random_letters(300, 400, 1, 17);
+    const letter_chain chain(sparse_of(m));
+    sparse_letters drawn;
+    chain.draw(300, 5, drawn);
+    const letter_chain raw(drawn, 0.0), fitted(drawn);
+    // The information in single letters (total minus noise entropy at L = 1) of the raw refit
+    // exceeds the model's; the default refit's is near it.
+    const double truth = chain.entropies(1).total - chain.entropies(1).noise;
+    const double raw_info = raw.entropies(1).total - raw.entropies(1).noise;
+    const double fitted_info = fitted.entropies(1).total - fitted.entropies(1).noise;
+    EXPECT_GT(raw_info, truth);
+    EXPECT_NEAR(fitted_info, truth, 0.25 * std::abs(raw_info - truth) + 1e-4);
 }

@@ -84,11 +84,24 @@ void check_direct_memory(const recording& rec, const direct_request& q, const st
     const double task = per_letter * cells * (q.null_rotations > 0 ? 2 : 1) + per_position * bins +
                         per_spiky_word * std::min(spikes * letters, cells) + per_spike_held * spikes +
                         per_trial_held * t + subset_tallies(t, q.settings.splits);
+    // The calibration's surrogates (direct_calibration.cpp): each holds its own letters (8 bytes a
+    // spike), words and tallies, and the model two letter distributions per bin; its enumeration of
+    // pooled words at most 2^14 doubles twice.
+    const double surrogates = q.settings.surrogates;
+    const double calibration = surrogates == 0 ? 0
+                                               : surrogates * (8 * spikes + per_position * bins +
+                                                               per_spiky_word * std::min(spikes * letters, cells) +
+                                                               subset_tallies(t, q.settings.splits)) +
+                                                     2 * 8 * 8 * bins + 2 * 8 * 16384;
     const double tasks = static_cast<double>(units.size() * q.bin_ms.size());
     const double threads = std::min(tasks, static_cast<double>(effective_threads(q.threads)));
     const double lengths = static_cast<double>(q.settings.letters_max - q.settings.letters_min + 1);
-    const memory_part per_task{task, request + (threads > 1 ? ", held by each of " + format_number(threads) + " threads" : ""),
-                               threads > 1 ? "use a wider bin, fewer trials or fewer --threads" : "use a wider bin or fewer trials"};
+    const std::string fewer = calibration > task ? "fewer --surrogates, " : "";
+    const memory_part per_task{task + calibration,
+                               request + (surrogates > 0 ? " and " + format_number(surrogates) + " surrogates of it" : "") +
+                                   (threads > 1 ? ", held by each of " + format_number(threads) + " threads" : ""),
+                               threads > 1 ? "use " + fewer + "a wider bin, fewer trials or fewer --threads"
+                                           : "use " + fewer + "a wider bin or fewer trials"};
     const memory_part results{tasks * (per_direct_result + per_direct_word_length * lengths),
                               rec.source + ": " + counted(units.size(), "unit") + " x " + counted(q.bin_ms.size(), "bin width") +
                                   " x " + counted(static_cast<std::size_t>(lengths), "word length") + " (--letters " +

@@ -71,13 +71,9 @@ letter_chain::letter_chain(const sparse_letters& letters, std::optional<double> 
         if (n == 0) std::copy_n(pooled.begin() + static_cast<std::ptrdiff_t>((1 - s) * A), A, pooled.begin() + static_cast<std::ptrdiff_t>(s * A));
     }
 
-    // Each state's weight of the pooled distribution, from its bins' spike frequencies.
-    double weight[2];
-    for (int s = 0; s < 2; ++s) {
-        if (pseudo_trials) {
-            weight[s] = *pseudo_trials;
-            continue;
-        }
+    // Each state's variance of the spike probability across bins beyond the sampling noise.
+    double between[2] = {0, 0};
+    for (int s = 0; s < 2 && !pseudo_trials; ++s) {
         std::vector<double> spikes, trials;
         for (std::size_t t = 0; t < bins_; ++t) {
             const double* c = counts.data() + (t * 2 + static_cast<std::size_t>(s)) * A;
@@ -88,23 +84,30 @@ letter_chain::letter_chain(const sparse_letters& letters, std::optional<double> 
                 trials.push_back(n);
             }
         }
-        weight[s] = empirical_weight(spikes, trials);
+        between[s] = variance_beyond_noise(spikes, trials);
     }
 
     p_.assign(bins_ * 2 * A, 0.0);
     for (std::size_t t = 0; t < bins_; ++t) {
         for (int s = 0; s < 2; ++s) {
-            const double pseudo_trials = weight[s];
             const double* c = counts.data() + (t * 2 + static_cast<std::size_t>(s)) * A;
+            const double* g = pooled.data() + static_cast<std::size_t>(s) * A;
             double n = 0;
             for (std::size_t a = 0; a < A; ++a) n += c[a];
             double* p = p_.data() + (t * 2 + static_cast<std::size_t>(s)) * A;
-            // A state no trial was in at this bin (and no pseudo-trials) takes the pooled distribution.
-            for (std::size_t a = 0; a < A; ++a) {
-                p[a] = std::isinf(pseudo_trials) || n + pseudo_trials <= 0
-                           ? pooled[s * A + a]
-                           : (c[a] + pseudo_trials * pooled[s * A + a]) / (n + pseudo_trials);
+            if (pseudo_trials) {
+                // A state no trial was in at this bin (and no pseudo-trials) takes the pooled distribution.
+                for (std::size_t a = 0; a < A; ++a) {
+                    p[a] = n + *pseudo_trials > 0 ? (c[a] + *pseudo_trials * g[a]) / (n + *pseudo_trials) : g[a];
+                }
+                continue;
             }
+            // The bin's frequencies moved toward the pooled ones by the factor that leaves them the
+            // variance across bins the data show beyond their noise (a convex mix: still a distribution).
+            const double m = 1 - g[0];
+            const double noise = n > 0 ? m * (1 - m) / n : 0;
+            const double keep = n > 0 && between[s] > 0 ? std::sqrt(between[s] / (between[s] + noise)) : 0.0;
+            for (std::size_t a = 0; a < A; ++a) p[a] = g[a] + keep * ((n > 0 ? c[a] / n : g[a]) - g[a]);
         }
     }
 
@@ -116,24 +119,22 @@ letter_chain::letter_chain(const sparse_letters& letters, std::optional<double> 
     }
 }
 
-double letter_chain::empirical_weight(const std::vector<double>& spikes, const std::vector<double>& trials) {
+double letter_chain::variance_beyond_noise(const std::vector<double>& spikes, const std::vector<double>& trials) {
     double k = 0, n = 0;
     for (std::size_t t = 0; t < spikes.size(); ++t) {
         k += spikes[t];
         n += trials[t];
     }
-    if (spikes.size() < 2 || n <= 0) return std::numeric_limits<double>::infinity();
+    if (spikes.size() < 2 || n <= 0) return 0;
     const double m = k / n;
-    if (m <= 0 || m >= 1) return std::numeric_limits<double>::infinity();
+    if (m <= 0 || m >= 1) return 0;
     double observed = 0, binomial = 0;
     for (std::size_t t = 0; t < spikes.size(); ++t) {
         const double f = spikes[t] / trials[t];
         observed += (f - m) * (f - m);
         binomial += m * (1 - m) / trials[t];
     }
-    const double between = (observed - binomial) / static_cast<double>(spikes.size());
-    if (between <= 0) return std::numeric_limits<double>::infinity();
-    return std::max(0.0, m * (1 - m) / between - 1);
+    return std::max(0.0, (observed - binomial) / static_cast<double>(spikes.size()));
 }
 
 int letter_chain::longest_enumerable() const {

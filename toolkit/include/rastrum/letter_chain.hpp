@@ -22,22 +22,22 @@ namespace rastrum {
 
 class letter_chain {
 public:
-    /// Fits the model to `letters` (at least 1 trial and 1 bin). Each bin's two distributions are
-    /// the trials' letter frequencies after a silent and after a spiking bin, drawn toward the same
-    /// distribution pooled over all bins with the weight of `pseudo_trials` trials. By default that
-    /// weight is estimated, per state, from the data (empirical Bayes, below), so that the model's
-    /// bin-to-bin differences are those the data show beyond their sampling noise: a model of raw
-    /// frequencies would carry more information than the truth, and surrogates drawn from it would
-    /// misjudge the estimator's bias (notes/methods.md, "Calibration").
+    /// Fits the model to `letters` (at least 1 trial and 1 bin). Each bin's two distributions come
+    /// from the trials' letter frequencies after a silent and after a spiking bin. Raw frequencies
+    /// would vary more from bin to bin than the truth does (their sampling noise adds to it), and
+    /// the posterior means of a Bayes model less (they shrink too far), so that the model carried
+    /// more, or less, information than the data show, and surrogates drawn from it misjudged the
+    /// estimator's bias. By default each bin's frequencies are therefore moved toward the state's
+    /// distribution pooled over bins by the factor sqrt(t2 / (t2 + m (1 - m) / n)), which leaves
+    /// the spike probabilities the variance across bins t2 that the data show beyond their binomial
+    /// noise (a variance-matching, "constrained Bayes" estimate: Louis 1984, J. Am. Stat. Assoc.
+    /// 79:393, from memory; notes/methods-calibration.md). With `pseudo_trials`, the frequencies are
+    /// instead mixed with that many trials of the pooled distribution (0: the raw frequencies).
     explicit letter_chain(const sparse_letters& letters, std::optional<double> pseudo_trials = std::nullopt);
 
-    /// The estimated weight: spike probabilities across bins taken as Beta-distributed with the pooled
-    /// mean m, the method of moments gives their variance t2 as the observed variance of the bins'
-    /// frequencies less the binomial part m (1 - m) mean(1/n), and the weight m (1 - m) / t2 - 1
-    /// (a beta-binomial posterior mean; e.g. Casella 1985, Am. Stat. 39:83, from memory). No
-    /// variance beyond the sampling noise gives an infinite weight: every bin takes the pooled
-    /// distribution.
-    static double empirical_weight(const std::vector<double>& spikes, const std::vector<double>& trials);
+    /// t2 by the method of moments: the observed variance of the bins' spike frequencies about their
+    /// pooled mean m, less the binomial part m (1 - m) mean(1/n); 0 when that is not positive.
+    static double variance_beyond_noise(const std::vector<double>& spikes, const std::vector<double>& trials);
 
     std::size_t bins() const { return bins_; }
     std::size_t alphabet() const { return alphabet_; }
