@@ -149,11 +149,14 @@ batch_folder make_slow_batch_folder(const std::string& name) {
     b.plan = b.folder + "/plan.ini";
     b.out = b.folder + "/results";
     const std::string first = b.folder + "/rec1.h5";
-    const auto r = run_rastrum("synth poisson --out '" + first + "' --trials 100 --duration-s 4 --rate-hz 20,30 --seed 3");
+    // Each task must last long enough (a second or more) to be stopped while the next waits: every
+    // word length of 1 ms bins with 49 rotated nulls (words stop growing at the sampling rule
+    // otherwise, and a task then takes a tenth of a second).
+    const auto r = run_rastrum("synth poisson --out '" + first + "' --trials 200 --duration-s 10 --rate-hz 20,30 --seed 3");
     EXPECT_EQ(r.exit_code, 0) << r.err;
     for (const char* copy: {"/rec2.h5", "/rec3.h5", "/rec4.h5"}) fs::copy_file(first, b.folder + copy);
-    write_text(b.plan,
-               "output = results\n[inputs]\nfiles = rec*.h5\n[direct]\nbin-ms = 2\nletters = 1-8\nnull-rotations = 3\n");
+    write_text(b.plan, "output = results\n[inputs]\nfiles = rec*.h5\n[direct]\nbin-ms = 1\nletters = 1-16\nevery-length = true\n"
+                       "null-rotations = 49\n");
     return b;
 }
 
