@@ -49,8 +49,8 @@ int run_direct(int argc, char** argv) {
          "calibrate each estimate at its own sample size on N surrogate data sets drawn from a model fitted to the "
          "record (its firing time course and bin-to-bin dependence, with exactly known answers): the rate is "
          "corrected by the measured bias, its interval follows the measured error, and the word lengths of the "
-         "fit are the longest whose error is within --error-tolerance; 0 turns it off; costs about N/4 extra "
-         "estimates (notes/methods.md, \"Calibration\")")
+         "fit are chosen by that error (longer words whenever within --error-tolerance); 0 turns it off; costs "
+         "about N extra estimates, grown to longer words (notes/methods-calibration.md)")
         ("surrogate-splits", po::value(&surrogate_splits_text)->default_value(surrogate_splits_text),
          "random nested splits of the trials in each surrogate's estimate")
         ("error-tolerance", number_value(&request.settings.error_tolerance),
