@@ -141,3 +141,19 @@ TEST(direct_calibration, bad_settings_are_usage_errors) {
     s.error_floor_bits_per_spike = -1;
     EXPECT_THROW(check_direct_settings(s), usage_error);
 }
+
+// Too little data (60 trials of 1 s): no range meets the tolerance, and the record says so. The
+// reported range still extrapolates (single letters are blind to patterns, so reporting them would
+// be a confident zero under another name), and its interval is as wide as its error.
+TEST(direct_calibration, too_little_data_is_marked_uncertain_and_still_extrapolates) {
+    patterns_spec spec = pattern_unit(60, 1);
+    spec.session.duration = 1.0;
+    const direct_record r = run_direct(make_patterns(spec).rec, calibrated(12))[0];
+    ASSERT_TRUE(r.estimate.calibration.has_value());
+    EXPECT_TRUE(r.estimate.calibration->uncertain);
+    EXPECT_GT(r.estimate.fit_letters.second, r.estimate.fit_letters.first);
+    bool cautioned = false;
+    for (const auto& w: r.warnings) cautioned = cautioned || w.rfind("uncertain:", 0) == 0;
+    EXPECT_TRUE(cautioned);
+    EXPECT_GT(r.estimate.calibration->by_fit.at(r.estimate.calibration->chosen).error, r.estimate.calibration->tolerance);
+}

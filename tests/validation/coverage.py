@@ -10,6 +10,7 @@ direct records whose fit range uses words longer than one letter, and the nulls'
 at 0.05 on the designs without information. Usage:
 
     coverage.py PATH_TO_rastrum [--seeds N] [--designs a,b] [--jobs J] [--quick] [--out table.md]
+                [--direct-args "--surrogates 20"]
 
 Seeds are 1..N for every design (synth --seed s and the analysis's --seed s), so a run is repeatable.
 Exact answers come from the answers file `rastrum synth` writes beside each recording (computed by
@@ -24,6 +25,7 @@ import json
 import math
 import os
 import re
+import shlex
 import subprocess
 import sys
 import tempfile
@@ -159,7 +161,7 @@ def run(rastrum, args):
     return done.stdout
 
 
-def one_seed(rastrum, design, seed, quick, folder):
+def one_seed(rastrum, design, seed, quick, folder, direct_args=()):
     """Synthesises one recording, analyses it, returns its measurements: a list of observations
     (quantity, estimate, interval or None, truth, unit) and the record's cautions, fit and p-value."""
     path = os.path.join(folder, f"{slug(design['name'])}-{seed}.h5")
@@ -170,6 +172,8 @@ def one_seed(rastrum, design, seed, quick, folder):
         answers = json.load(f)
     units = need(answers, "units", answers_path)
     extra = ["--null-shuffles", "40", "--bootstrap", "40"] if quick and design["tool"] == "stiminfo" else []
+    if design["tool"] == "direct":
+        extra = extra + list(direct_args)
     out = json.loads(run(rastrum, [design["tool"], path] + design["analysis"] + extra + ["--seed", str(seed)] +
                          (DIRECT if design["tool"] == "direct" else STIMINFO)))
     os.remove(path)
@@ -333,6 +337,8 @@ def main():
     ap.add_argument("--jobs", type=int, default=2)
     ap.add_argument("--quick", action="store_true", help="a few seeds on small designs: checks the instrument")
     ap.add_argument("--out", help="also write the table (Markdown) here")
+    ap.add_argument("--direct-args", default="",
+                    help="options added to every direct analysis, e.g. '--surrogates 20' (the calibration)")
     a = ap.parse_args()
     seeds = min(a.seeds, 3) if a.quick else a.seeds
     wanted = {slug(x) for x in a.designs.split(",") if x}
@@ -350,7 +356,8 @@ def main():
     summaries = []
     with tempfile.TemporaryDirectory() as folder, concurrent.futures.ThreadPoolExecutor(a.jobs) as pool:
         for d in designs:
-            futures = [pool.submit(one_seed, a.rastrum, d, s, a.quick, folder) for s in range(1, seeds + 1)]
+            futures = [pool.submit(one_seed, a.rastrum, d, s, a.quick, folder, shlex.split(a.direct_args))
+                       for s in range(1, seeds + 1)]
             try:
                 results = [r for f in futures for r in f.result()]
             except Broken as e:

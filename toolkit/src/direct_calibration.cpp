@@ -55,18 +55,21 @@ std::pair<int, int> upper_half(int b, int letters_min) { return {std::max(letter
 /// information. Of those the shortest that extrapolates (ends past the shortest length) is
 /// reported, or the shortest when none does: chosen by position, not by the smallest error, whose
 /// estimate from a few surrogates is itself noisy (picking the smallest picks an underestimate).
-/// When no range is within tolerance, the one with the smallest error.
+/// When no range is within tolerance, the extrapolating one with the smallest error.
 std::size_t choose_fit(const std::vector<calibrated_fit>& by_fit) {
     std::size_t longest = by_fit.size();
     for (std::size_t i = 0; i < by_fit.size(); ++i) {
         if (by_fit[i].within_tolerance) longest = i;
     }
     if (longest == by_fit.size()) {
-        std::size_t best = 0;
-        for (std::size_t i = 1; i < by_fit.size(); ++i) {
-            if (by_fit[i].error < by_fit[best].error) best = i;
+        // None within tolerance: the smallest error among the ranges that extrapolate, when there
+        // are any (single letters measure another quantity, blind to patterns), else the first.
+        std::size_t best = by_fit.size();
+        for (std::size_t i = 0; i < by_fit.size(); ++i) {
+            const bool extrapolates = by_fit[i].fit.first < by_fit[i].fit.second;
+            if (extrapolates && (best == by_fit.size() || by_fit[i].error < by_fit[best].error)) best = i;
         }
-        return best;
+        return best == by_fit.size() ? 0 : best;
     }
     const calibrated_fit& reference = by_fit[longest];
     auto agrees = [&](const calibrated_fit& c) {
@@ -157,8 +160,10 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
             }
             continue;
         }
-        // Errors grow with word length: the first range beyond the tolerance ends the search.
-        if (!examine(upper_half(L, settings.letters_min)) && !settings.every_length) {
+        // Errors grow with word length: the first range beyond the tolerance ends the search, once
+        // a range that extrapolates has been seen (single letters failing says nothing of patterns).
+        const bool within = examine(upper_half(L, settings.letters_min));
+        if (!within && L > settings.letters_min && !settings.every_length) {
             stop = length_stop::calibration;
             break;
         }
