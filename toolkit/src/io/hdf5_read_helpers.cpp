@@ -13,7 +13,7 @@
 
 namespace rastrum::hdf5 {
 
-namespace {
+namespace detail {
 
 // The innermost message of the last failed library call. HDF5 clears its error stack at the next
 // API call, which may happen while an exception unwinds (closing an identifier), so the message is
@@ -22,6 +22,12 @@ std::string& captured_message() {
     static thread_local std::string message;
     return message;
 }
+
+}  // namespace detail
+
+using namespace detail;
+
+namespace {
 
 herr_t keep_innermost(unsigned n, const H5E_error2_t* entry, void* out) {
     if (n == 0 && entry != nullptr && entry->desc != nullptr) *static_cast<std::string*>(out) = entry->desc;
@@ -39,12 +45,6 @@ herr_t capture_instead_of_printing(hid_t stack, void*) {
 // filtered dataset declaring more than this many times the file size cannot be real data.
 constexpr std::uint64_t max_compression_ratio = 1032;
 
-std::string bytes_text(std::uint64_t bytes) { return std::to_string(bytes) + " bytes"; }
-
-std::string hex_byte(unsigned char byte) {
-    static const char digits[] = "0123456789abcdef";
-    return std::string("0x") + digits[byte >> 4] + digits[byte & 15];
-}
 
 // A name that may hold invalid UTF-8, made safe to print: bytes above 0x7f as \xNN.
 std::string printable(const std::string& text) {
@@ -78,60 +78,20 @@ object_kind kind_of(H5O_type_t type) {
     }
 }
 
-std::string of_type(const H5::DataType& type) { return "elements of type " + describe_type(type); }
+}  // namespace
 
-// Strings read through a caller-supplied read call, so datasets and attributes share one decoder.
-using raw_read = std::function<void(void* buffer, const H5::DataType& memory_type)>;
+namespace detail {
 
-// Variable-length strings come back as library-allocated pointers; this frees them on every path.
-struct vlen_buffer {
-    std::vector<char*> pointers;
-    explicit vlen_buffer(std::size_t n): pointers(n, nullptr) {}
-    ~vlen_buffer() {
-        for (char* p: pointers) {
-            if (p != nullptr) H5free_memory(p);
-        }
-    }
-    vlen_buffer(const vlen_buffer&) = delete;
-    vlen_buffer& operator=(const vlen_buffer&) = delete;
-};
+std::string bytes_text(std::uint64_t bytes) { return std::to_string(bytes) + " bytes"; }
 
-std::vector<std::string> decode_strings(const H5::DataType& file_type, std::size_t n, const raw_read& read) {
-    const hid_t tid = file_type.getId();
-    const H5T_cset_t cset = H5Tget_cset(tid);
-    std::vector<std::string> out;
-    out.reserve(n);
-    if (n == 0) return out;
-    if (H5Tis_variable_str(tid) > 0) {
-        // Same character set in memory as on disk: HDF5 does not convert between ASCII and UTF-8.
-        H5::StrType memory(H5::PredType::C_S1, H5T_VARIABLE);
-        memory.setCset(cset);
-        vlen_buffer buffer(n);
-        read(buffer.pointers.data(), memory);
-        for (const char* p: buffer.pointers) out.emplace_back(p != nullptr ? p : "");
-        return out;
-    }
-    const std::size_t width = H5Tget_size(tid);
-    const H5T_str_t pad = H5Tget_strpad(tid);
-    H5::StrType memory(H5::PredType::C_S1, width);
-    memory.setCset(cset);
-    memory.setStrpad(pad);
-    std::vector<char> buffer(n * width);
-    read(buffer.data(), memory);
-    for (std::size_t i = 0; i < n; ++i) {
-        std::string s(buffer.data() + i * width, width);
-        if (pad == H5T_STR_SPACEPAD) {
-            s.erase(s.find_last_not_of(' ') + 1);
-        } else {
-            const auto nul = s.find('\0');
-            if (nul != std::string::npos) s.erase(nul);
-        }
-        out.push_back(std::move(s));
-    }
-    return out;
+std::string hex_byte(unsigned char byte) {
+    static const char digits[] = "0123456789abcdef";
+    return std::string("0x") + digits[byte >> 4] + digits[byte & 15];
 }
 
-}  // namespace
+std::string of_type(const H5::DataType& type) { return "elements of type " + describe_type(type); }
+
+}  // namespace detail
 
 void quiet_library() { H5::Exception::dontPrint(); }
 
@@ -489,7 +449,7 @@ std::vector<double> source::read_float64_range(const std::string& object, std::s
     });
 }
 
-namespace {
+namespace detail {
 // Unsigned integers of 64 bits hold values int64 cannot.
 bool is_wide_unsigned(const H5::DataType& type) {
     return H5Tget_sign(type.getId()) == H5T_SGN_NONE && type.getSize() >= 8;
@@ -520,7 +480,7 @@ void require_integer_width(const H5::DataType& type, const std::string& file, co
                            const std::string& expected) {
     if (type.getSize() > 8) throw input_error(file, object, expected + " of at most 64 bits", of_type(type));
 }
-}  // namespace
+}  // namespace detail
 
 std::vector<std::int64_t> source::read_int64(const std::string& object, shape accepted) {
     const std::string expected = accepted == shape::one_dimensional ? "a 1-D integer dataset" : "a vector of integers";
@@ -530,216 +490,6 @@ std::vector<std::int64_t> source::read_int64(const std::string& object, shape ac
         if (type.getClass() != H5T_INTEGER) throw input_error(path_, object, expected, of_type(type));
         require_integer_width(type, path_, object, expected);
         return read_integers(ds, checked_extent(ds, object, expected, accepted).elements, path_, object);
-    });
-}
-
-std::vector<std::string> source::read_string_elements(const H5::DataSet& ds, const H5::StrType& type,
-                                                      std::size_t elements, const std::string& object) {
-    // Variable-length strings live in the global heap, and nothing stops a crafted file from
-    // pointing many elements at one large heap object: their total is asked of the library (which
-    // sums the lengths without reading the strings) and held against the file before the read.
-    if (elements > 0 && H5Tis_variable_str(type.getId()) > 0) {
-        H5::StrType memory(H5::PredType::C_S1, H5T_VARIABLE);
-        memory.setCset(H5Tget_cset(type.getId()));  // HDF5 converts no character set into another
-        const H5::DataSpace space = ds.getSpace();
-        hsize_t bytes = 0;
-        forget_library_message();
-        if (H5Dvlen_get_buf_size(ds.getId(), memory.getId(), space.getId(), &bytes) < 0) {
-            throw input_error(path_, object, "readable variable-length strings", "an HDF5 error: " + captured_message());
-        }
-        if (bytes > file_size_) {
-            throw input_error(path_, object, "strings that fit in the file (" + bytes_text(file_size_) + ")",
-                              "strings of " + bytes_text(bytes) + " in all");
-        }
-    }
-    std::vector<std::string> values = decode_strings(
-        type, elements, [&](void* buffer, const H5::DataType& memory) { ds.read(buffer, memory); });
-    for (std::size_t i = 0; i < values.size(); ++i) {
-        const std::size_t bad = invalid_utf8_offset(values[i]);
-        if (bad != std::string::npos) {
-            throw input_error(path_, element_path(object, i), "UTF-8 text",
-                              "byte " + hex_byte(static_cast<unsigned char>(values[i][bad])) + " at offset " +
-                                  std::to_string(bad) + ", which is not UTF-8");
-        }
-    }
-    return values;
-}
-
-std::vector<std::string> source::read_strings(const std::string& object) {
-    const std::string expected = "a 1-D string dataset (UTF-8, variable- or fixed-length)";
-    const H5::DataSet ds = dataset(object, expected);
-    return guard(object, expected, [&] {
-        const H5::DataType type = ds.getDataType();
-        if (type.getClass() != H5T_STRING) throw input_error(path_, object, expected, of_type(type));
-        return read_string_elements(ds, ds.getStrType(), checked_extent(ds, object, expected).elements, object);
-    });
-}
-
-std::vector<std::string> source::read_labels(const std::string& object, label_types accepted, shape accepted_shape) {
-    const bool floats = accepted == label_types::numbers_and_text;
-    const std::string expected = std::string(accepted_shape == shape::one_dimensional ? "a 1-D dataset" : "a vector") +
-                                 (floats ? " of numbers or strings" : " of integer or string labels");
-    const H5::DataSet ds = dataset(object, expected);
-    return guard(object, expected, [&] {
-        const H5::DataType type = ds.getDataType();
-        const H5T_class_t kind = type.getClass();
-        const bool enumeration = floats && kind == H5T_ENUM;
-        if (kind != H5T_INTEGER && kind != H5T_STRING && !(floats && kind == H5T_FLOAT) && !enumeration) {
-            throw input_error(path_, object, expected, of_type(type));
-        }
-        const std::size_t n = checked_extent(ds, object, expected, accepted_shape).elements;
-        if (kind == H5T_STRING) return read_string_elements(ds, ds.getStrType(), n, object);
-        if (enumeration) return read_enum_names(ds, n, object);
-        std::vector<std::string> labels;
-        labels.reserve(n);
-        if (n == 0) return labels;
-        if (kind == H5T_FLOAT) {
-            std::vector<double> values(n);
-            ds.read(values.data(), H5::PredType::NATIVE_DOUBLE);
-            for (std::size_t i = 0; i < n; ++i) {
-                if (!std::isfinite(values[i])) {
-                    throw input_error(path_, element_path(object, i), "a finite number", exact_number(values[i]));
-                }
-                labels.push_back(exact_number(values[i]));
-            }
-            return labels;
-        }
-        require_integer_width(type, path_, object, expected);
-        // Labels are text, so unsigned 64-bit values keep their exact decimal form.
-        if (is_wide_unsigned(type)) {
-            std::vector<std::uint64_t> raw(n);
-            ds.read(raw.data(), H5::PredType::NATIVE_UINT64);
-            for (const std::uint64_t v: raw) labels.push_back(std::to_string(v));
-        } else {
-            for (const std::int64_t v: read_integers(ds, n, path_, object)) labels.push_back(std::to_string(v));
-        }
-        return labels;
-    });
-}
-
-std::vector<std::string> source::read_enum_names(const H5::DataSet& ds, std::size_t n, const std::string& object) {
-    // Read in the enumeration's own (native-order) type and named member by member: HDF5 converts
-    // enumerations only to enumerations, and the names are what the writer meant (TRUE, FALSE).
-    const hid_t native = H5Tget_native_type(ds.getDataType().getId(), H5T_DIR_ASCEND);
-    if (native < 0) throw input_error(path_, object, "a readable enumeration", "an HDF5 error: " + captured_message());
-    const H5::EnumType type(native);
-    H5Tclose(native);
-    const std::size_t width = type.getSize();
-    std::vector<unsigned char> raw(n * width);
-    if (n > 0) ds.read(raw.data(), type);
-    std::vector<std::string> labels;
-    labels.reserve(n);
-    for (std::size_t i = 0; i < n; ++i) {
-        char name[256];
-        if (H5Tenum_nameof(type.getId(), raw.data() + i * width, name, sizeof name) < 0) {
-            throw input_error(path_, element_path(object, i), "a value that is a member of its enumeration",
-                              "a value without a name");
-        }
-        labels.emplace_back(name);
-    }
-    return labels;
-}
-
-std::vector<std::string> source::read_reference_paths(const std::string& object, shape accepted) {
-    const std::string expected = "a dataset of object references";
-    const H5::DataSet ds = dataset(object, expected);
-    return guard(object, expected, [&] {
-        const H5::DataType type = ds.getDataType();
-        if (type.getClass() != H5T_REFERENCE || !(type == H5::PredType::STD_REF_OBJ)) {
-            throw input_error(path_, object, expected, of_type(type));
-        }
-        const std::size_t n = checked_extent(ds, object, expected, accepted).elements;
-        std::vector<hobj_ref_t> refs(n);
-        if (n > 0) ds.read(refs.data(), H5::PredType::STD_REF_OBJ);
-        std::vector<std::string> paths;
-        paths.reserve(n);
-        for (std::size_t i = 0; i < n; ++i) {
-            forget_library_message();
-            const ssize_t length = H5Rget_name(file_.getId(), H5R_OBJECT, &refs[i], nullptr, 0);
-            if (length <= 0) {
-                throw input_error(path_, element_path(object, i), "a reference to a named object in this file",
-                                  length < 0 ? "an HDF5 error: " + captured_message() : "an object without a name");
-            }
-            std::string name(static_cast<std::size_t>(length) + 1, '\0');
-            H5Rget_name(file_.getId(), H5R_OBJECT, &refs[i], name.data(), name.size());
-            name.resize(static_cast<std::size_t>(length));
-            paths.push_back(std::move(name));
-        }
-        return paths;
-    });
-}
-
-bool source::has_attribute(const std::string& object, const std::string& name) {
-    const std::string where = attribute_path(object, name);
-    if (kind(object) == object_kind::missing) return false;
-    captured_message().clear();
-    const htri_t found = H5Aexists_by_name(file_.getId(), object.c_str(), name.c_str(), H5P_DEFAULT);
-    if (found < 0) throw input_error(path_, where, "a readable attribute", "an HDF5 error: " + captured_message());
-    return found > 0;
-}
-
-namespace {
-// An attribute holds one value when it is scalar or a one-element 1-D array.
-void require_single_value(const H5::Attribute& a, const std::string& file, const std::string& where,
-                          const std::string& expected) {
-    const H5::DataSpace space = a.getSpace();
-    if (space.getSimpleExtentType() == H5S_SCALAR) return;
-    if (space.getSimpleExtentType() == H5S_SIMPLE && space.getSimpleExtentNpoints() == 1) return;
-    throw input_error(file, where, expected + " (one value)",
-                      std::to_string(space.getSimpleExtentNpoints()) + " values");
-}
-
-H5::Attribute open_attribute(H5::H5File& file, object_kind kind, const std::string& object, const std::string& name) {
-    if (kind == object_kind::dataset) return file.openDataSet(object).openAttribute(name);
-    return file.openGroup(object).openAttribute(name);
-}
-}  // namespace
-
-std::string source::read_string_attribute(const std::string& object, const std::string& name) {
-    const std::string where = attribute_path(object, name);
-    const std::string expected = "a UTF-8 string attribute";
-    const object_kind k = kind(object);
-    return guard(where, expected, [&] {
-        const H5::Attribute a = open_attribute(file_, k, object, name);
-        const H5::DataType type = a.getDataType();
-        if (type.getClass() != H5T_STRING) throw input_error(path_, where, expected, of_type(type));
-        require_single_value(a, path_, where, expected);
-        if (type.getSize() > file_size_) {
-            throw input_error(path_, where, expected + " that fits in the file (" + bytes_text(file_size_) + ")",
-                              "a declared width of " + bytes_text(type.getSize()));
-        }
-        std::string value =
-            decode_strings(type, 1, [&](void* buffer, const H5::DataType& memory) { a.read(memory, buffer); })[0];
-        const std::size_t bad = invalid_utf8_offset(value);
-        if (bad != std::string::npos) {
-            throw input_error(path_, where, expected, "byte " + hex_byte(static_cast<unsigned char>(value[bad])) +
-                                                          " at offset " + std::to_string(bad) + ", not UTF-8");
-        }
-        return value;
-    });
-}
-
-std::int64_t source::read_int64_attribute(const std::string& object, const std::string& name) {
-    const std::string where = attribute_path(object, name);
-    const std::string expected = "an integer attribute";
-    const object_kind k = kind(object);
-    return guard(where, expected, [&] {
-        const H5::Attribute a = open_attribute(file_, k, object, name);
-        const H5::DataType type = a.getDataType();
-        if (type.getClass() != H5T_INTEGER) throw input_error(path_, where, expected, of_type(type));
-        require_integer_width(type, path_, where, expected);
-        require_single_value(a, path_, where, expected);
-        if (is_wide_unsigned(type)) {
-            std::uint64_t raw = 0;
-            a.read(H5::PredType::NATIVE_UINT64, &raw);
-            if (raw > static_cast<std::uint64_t>(std::numeric_limits<std::int64_t>::max())) {
-                throw input_error(path_, where, "an integer that fits in int64", std::to_string(raw));
-            }
-            return static_cast<std::int64_t>(raw);
-        }
-        std::int64_t value = 0;
-        a.read(H5::PredType::NATIVE_INT64, &value);
-        return value;
     });
 }
 

@@ -163,4 +163,23 @@ private:
     std::uint64_t file_size_ = 0;
 };
 
+/// Shared by this reader's own sources (hdf5_read_helpers.cpp for structure and numbers,
+/// hdf5_read_text.cpp for strings, labels and attributes); not for loaders.
+namespace detail {
+/// The innermost message of the last failed library call, kept while an error_capture lives.
+std::string& captured_message();
+std::string bytes_text(std::uint64_t bytes);
+std::string hex_byte(unsigned char byte);
+/// "elements of type 32-bit float", for messages.
+std::string of_type(const H5::DataType& type);
+/// Unsigned integers of 64 bits hold values int64 cannot.
+bool is_wide_unsigned(const H5::DataType& type);
+/// Integers of any width and sign as int64; uint64 values beyond int64 are an error at their index.
+std::vector<std::int64_t> read_integers(const H5::DataSet& dataset, std::size_t n, const std::string& file,
+                                        const std::string& object);
+/// Refuses integer types wider than 64 bits.
+void require_integer_width(const H5::DataType& type, const std::string& file, const std::string& object,
+                           const std::string& expected);
+}  // namespace detail
+
 }  // namespace rastrum::hdf5
