@@ -5,10 +5,14 @@
 #include <rastrum/stimulus_information.hpp>
 #include <rastrum/synthetic.hpp>
 
+#include "ranked_trials.hpp"
+
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <limits>
 #include <map>
+#include <set>
 
 using namespace rastrum;
 
@@ -211,5 +215,34 @@ TEST(stimulus_information, binary_words_bias_corrections_beat_plugin_over_seeds)
         if (e == info_estimator::plugin) continue;
         EXPECT_LT(std::abs(error[e]), error[info_estimator::plugin]) << info_estimator_name(e) << " " << error[e];
         RecordProperty(info_estimator_name(e), std::to_string(error[e]));
+    }
+}
+
+// Ranks of responses: the dense ranking of the distinct codes (common practice: a code's rank is the
+// number of distinct codes below it), here from a std::set. ranked_trials ranks codes of a small
+// span through a bitmap and others by a sort; both must give exactly this ranking, whatever the
+// span, at the span's edges and for codes near 2^64.
+TEST(RankedTrials, RanksAreTheDenseRankingOfTheCodesWhateverTheirSpan) {
+    random_stream rng(29);
+    const std::uint64_t top = std::numeric_limits<std::uint64_t>::max();
+    const std::vector<std::pair<std::uint64_t, std::uint64_t>> spans = {
+        {0, 1}, {0, 60}, {5, 40000}, {0, 64 * 1700}, {0, 64 * 1800}, {1000, 1u << 30}, {top - 500, top}, {0, top}};
+    for (const auto& [low, span]: spans) {
+        for (const std::size_t n: {1u, 2u, 200u}) {
+            std::vector<word_code> codes;
+            std::vector<std::uint32_t> condition;
+            for (std::size_t k = 0; k < n; ++k) {
+                const std::uint64_t offset = span == top ? rng.next() : rng.below(span + 1);
+                codes.push_back(k == 0 ? low : k == 1 ? low + span : low + offset);  // both ends present
+                condition.push_back(static_cast<std::uint32_t>(k % 3));
+            }
+            const std::set<word_code> distinct(codes.begin(), codes.end());
+            const detail::ranked_trials ranked(condition, 3, codes);
+            ASSERT_EQ(ranked.distinct(), distinct.size()) << "span " << span << ", " << n << " trials";
+            for (std::size_t k = 0; k < n; ++k) {
+                EXPECT_EQ(ranked.rank()[k], static_cast<std::uint32_t>(std::distance(distinct.begin(), distinct.find(codes[k]))))
+                    << "span " << span << ", trial " << k;
+            }
+        }
     }
 }

@@ -133,7 +133,17 @@ double independent_units::information(const std::vector<std::size_t>& use) {
         if (p_s[t] != 0) live.push_back(t);
     }
     const std::size_t width = live.size();
-    std::vector<double> prefix(m * width);  // row u: prod_{c <= u} P(r_c | live[j])
+    std::vector<double> weight(width);  // p(t) of each live condition
+    for (std::size_t j = 0; j < width; ++j) weight[j] = p_s[live[j]];
+    // The last unit's digit moves fastest: its P(r | t) are laid out response by response, so the
+    // innermost loop reads them in order.
+    const std::size_t last = m - 1;
+    std::vector<double> last_columns(distinct_[last] * width);
+    for (std::size_t r = 0; r < distinct_[last]; ++r) {
+        for (std::size_t j = 0; j < width; ++j) last_columns[r * width + j] = p_[last][live[j] * distinct_[last] + r];
+    }
+    std::vector<double> prefix(m * width);  // row u: prod_{c <= u} P(r_c | live[j]); row `last` is q
+    const std::vector<double> ones(width, 1.0);
     double info = 0;
     std::vector<std::size_t> digit(m);
     for (std::size_t s = 0; s < conditions; ++s) {
@@ -145,9 +155,9 @@ double independent_units::information(const std::vector<std::size_t>& use) {
         if (size == 0) continue;
         const std::size_t own = static_cast<std::size_t>(std::find(live.begin(), live.end(), s) - live.begin());
         std::fill(digit.begin(), digit.end(), 0);
-        std::size_t from = 0;  // the first unit whose digit changed
+        std::size_t from = 0;  // the first unit, before the last, whose digit changed
         while (true) {
-            for (std::size_t u = from; u < m; ++u) {
+            for (std::size_t u = from; u < last; ++u) {
                 const double* column = p_[u].data() + seen_[u][s][digit[u]];
                 const std::size_t stride = distinct_[u];
                 double* row = &prefix[u * width];
@@ -155,12 +165,22 @@ double independent_units::information(const std::vector<std::size_t>& use) {
                     row[j] = (u == 0 ? 1.0 : prefix[(u - 1) * width + j]) * column[live[j] * stride];
                 }
             }
-            const double* q = &prefix[(m - 1) * width];
-            double pooled = 0;
-            for (std::size_t j = 0; j < width; ++j) pooled += p_s[live[j]] * q[j];
-            const double p = q[own];
-            if (p > 0) info += p_s[s] * p * std::log2(p / pooled);
-            std::size_t u = m;
+            // The last unit's responses, in increasing order, against the product of the others'
+            // (1 for a single unit: 1 * x is x exactly).
+            const double* before = last == 0 ? ones.data() : &prefix[(last - 1) * width];
+            double* q = &prefix[last * width];
+            for (const std::uint32_t r: seen_[last][s]) {
+                const double* column = &last_columns[r * width];
+                for (std::size_t j = 0; j < width; ++j) q[j] = before[j] * column[j];
+                const double p = q[own];
+                if (p > 0) {
+                    double pooled = 0;
+                    for (std::size_t j = 0; j < width; ++j) pooled += weight[j] * q[j];
+                    info += p_s[s] * p * std::log2(p / pooled);
+                }
+            }
+            if (last == 0) break;
+            std::size_t u = last;
             while (u > 0 && ++digit[u - 1] == seen_[u - 1][s].size()) digit[--u] = 0;
             if (u == 0) break;
             from = u - 1;
@@ -175,8 +195,16 @@ double independent_information(const std::vector<labelled_responses>& units, con
     return independent_units(units, joint_limit).information(use);
 }
 
-population_values population_information(const std::vector<labelled_responses>& units, info_estimator estimator,
-                                         const info_settings& settings, unsigned shuffles, std::size_t joint_limit) {
+double independent_extrapolated(const std::vector<labelled_responses>& units, const info_settings& settings,
+                                std::size_t joint_limit) {
+    independent_units independent(units, joint_limit);
+    return extrapolate_over_trials(
+        units[0].condition, units[0].conditions,
+        [&](const std::vector<std::size_t>& use) { return independent.information(use); }, settings);
+}
+
+population_values population_information_given(const std::vector<labelled_responses>& units, info_estimator estimator,
+                                               const info_settings& settings, unsigned shuffles, double independent) {
     population_values v;
     const labelled_responses joint = joint_responses(units);
     v.joint = stimulus_information(joint, estimator, settings);
@@ -188,10 +216,7 @@ population_values population_information(const std::vector<labelled_responses>& 
         independent_noise += response_entropy(u.response, u.alphabet, estimator, settings) - info;
     }
     v.synergy = v.joint - v.sum_single;
-    independent_units independent(units, joint_limit);
-    v.independent = extrapolate_over_trials(
-        units[0].condition, units[0].conditions,
-        [&](const std::vector<std::size_t>& use) { return independent.information(use); }, settings);
+    v.independent = independent;
     double shuffled_noise = 0;  // H_sh(R|S), averaged over shuffles
     const unsigned repeats = std::max(1u, shuffles);
     for (unsigned i = 0; i < repeats; ++i) {
@@ -200,6 +225,13 @@ population_values population_information(const std::vector<labelled_responses>& 
     }
     // I_sh = H(R) - H_ind(R|S) + H_sh(R|S) - H(R|S) = I_joint + H_sh(R|S) - H_ind(R|S).
     v.shuffle_corrected = v.joint + shuffled_noise - independent_noise;
+    return v;
+}
+
+population_values population_information(const std::vector<labelled_responses>& units, info_estimator estimator,
+                                         const info_settings& settings, unsigned shuffles, std::size_t joint_limit) {
+    population_values v = population_information_given(units, estimator, settings, shuffles, 0.0);
+    v.independent = independent_extrapolated(units, settings, joint_limit);
     return v;
 }
 

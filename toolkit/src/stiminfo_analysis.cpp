@@ -119,7 +119,8 @@ population_record population_of(const std::vector<labelled_responses>& units, co
     // estimators, widened on each side by 1.96 bootstrap standard deviations of the population estimator.
     for (info_estimator e: envelope_estimators(q.estimators, q.population_estimator)) {
         if (e == q.population_estimator) continue;
-        const population_values v = population_information(units, e, settings, q.within_condition_shuffles, joint_limit);
+        const population_values v =
+            population_information_given(units, e, settings, q.within_condition_shuffles, p.values.independent);
         for (auto field: population_fields) {
             p.low.*field = std::min(p.low.*field, v.*field);
             p.high.*field = std::max(p.high.*field, v.*field);

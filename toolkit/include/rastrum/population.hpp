@@ -54,5 +54,12 @@ struct population_values {
 population_values population_information(const std::vector<labelled_responses>& units, info_estimator estimator,
                                          const info_settings& settings, unsigned shuffles,
                                          std::size_t joint_limit = independent_joint_limit);
+/// The same values with `independent` given: it does not depend on the estimator, so the values of
+/// several estimators on the same units compute it once (independent_extrapolated) and share it.
+population_values population_information_given(const std::vector<labelled_responses>& units, info_estimator estimator,
+                                               const info_settings& settings, unsigned shuffles, double independent);
+/// `independent` of population_information: the plug-in independent-units information extrapolated in 1/N.
+double independent_extrapolated(const std::vector<labelled_responses>& units, const info_settings& settings,
+                                std::size_t joint_limit = independent_joint_limit);
 
 }  // namespace rastrum
