@@ -26,13 +26,17 @@ With --null-units K (and --reference-units 0) the runs with 19 rotated nulls, of
 on K and 2K spread units and extrapolated to the session along their line, as the reference's above:
 for a machine too busy to run them whole before a deadline; the table says which rows are extrapolated.
 
+With --stiminfo the same run also measures issue 15's stimulus-information targets (stiminfo_session.py:
+the whole 1,000-unit session of units and neighbouring pairs, and what a pair costs against a unit, on
+both builds), in the same table.
+
 With --parallel 2 two measurements run at a time, the reference's beside this build's (the CPU
 seconds of each are its own; a busy machine still inflates them, notes/performance.md says how much).
 Exit 1 when a comparison of numbers fails (the targets are reported, not enforced).
 
 Usage: tests/bench/session_1000.py --rastrum build/rastrum --reference-rastrum OLD/rastrum
        [--reference-units 50] [--null-units 0] [--baseline-units 1] [--parallel 1] [--keep DIR [--reuse]]
-       [--json OUT]
+       [--stiminfo] [--json OUT]
 """
 import argparse
 import concurrent.futures
@@ -48,6 +52,7 @@ HERE = os.path.dirname(os.path.abspath(__file__))
 sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, HERE)
 from workloads import PYTHON, S1000_SYNTH, SWEEP, W1_SYNTH, WORKLOADS, fill, spread_units  # noqa: E402
+import stiminfo_session  # noqa: E402
 
 S1000_UNITS, W1_UNITS = 1000, 100
 CPU_TARGET_S = 120.0          # the 1,000-unit sweep without rotated nulls (issue 15)
@@ -114,6 +119,8 @@ def plan(opt, folder):
         direct("reference-k", opt.reference_rastrum, s1000, on[k])
         direct("s1000-2k", opt.rastrum, s1000, on[2 * k])
     direct("w1", opt.rastrum, w1, [])
+    if opt.stiminfo:
+        stiminfo_session.add_runs(runs, folder, opt.rastrum, opt.reference_rastrum)
     kb = opt.baseline_units
     for n in (kb, 2 * kb):
         out = os.path.join(folder, f"baseline-{n}.json")
@@ -140,7 +147,7 @@ def line_through(t1, t2, n1, n, total):
     return t1 + per_unit * (total - n1), per_unit, t1 - per_unit * n1
 
 
-def table(m, k, kb, checks, kn=0):
+def table(m, k, kb, checks, kn=0, extra_rows=()):
     """The Markdown table of the figures and the targets, and the derived figures."""
     plain = m["s1000"]["cpu_s"]
     if kn:  # rotated nulls on kn and 2 kn spread units: extrapolated to the session for both builds
@@ -218,6 +225,7 @@ def table(m, k, kb, checks, kn=0):
          f"baseline / this build: {ratio:.0f}x, >= {BASELINE_RATIO_TARGET:.0f}x: {mark(ratio >= BASELINE_RATIO_TARGET)}; "
          f"same numbers: {checks['baseline']}"),
     ]
+    rows += list(extra_rows)
     lines = ["| run (1 thread) | units measured | CPU s measured | CPU s for all units | peak RSS MiB | target, check |",
              "|---|---|---|---|---|---|"]
     for what, units, cpu, scaled, peak, note in rows:
@@ -250,6 +258,7 @@ def main():
     p.add_argument("--parallel", type=int, default=1, help="measurements run at a time")
     p.add_argument("--keep", help="work in this folder and keep it (default: a temporary folder, removed)")
     p.add_argument("--reuse", action="store_true", help="with --keep: keep recordings and runs already there")
+    p.add_argument("--stiminfo", action="store_true", help="measure the stimulus-information targets in the same run")
     p.add_argument("--json", help="write every figure here")
     opt = p.parse_args()
     opt.rastrum = os.path.abspath(opt.rastrum)
@@ -257,8 +266,10 @@ def main():
     folder = os.path.abspath(opt.keep or tempfile.mkdtemp(prefix="rastrum-session-1000-"))
     os.makedirs(folder, exist_ok=True)
     try:
-        for make in (S1000_SYNTH, W1_SYNTH):
-            made = fill(make, dir=folder)
+        makes = [fill(make, dir=folder) for make in (S1000_SYNTH, W1_SYNTH)]
+        if opt.stiminfo:
+            makes.append(stiminfo_session.session_synth(f"{folder}/conditions1000.h5"))
+        for made in makes:
             if not (opt.reuse and os.path.exists(made[made.index("--out") + 1])):
                 subprocess.run([opt.rastrum] + made + ["--overwrite"], check=True, stdout=subprocess.DEVNULL)
         runs = plan(opt, folder)
@@ -281,7 +292,14 @@ def main():
         ok, text = baseline_agrees(out["w1"], out[f"baseline-{2 * kb}"])
         checks["baseline"] = "yes" if ok else "**NO**"
         details.append(f"baseline on {2 * kb} units against this build: {text}")
-        text, derived = table(m, k, kb, checks, kn)
+        extra, extra_derived = [], {}
+        if opt.stiminfo:
+            ok, text = same_numbers(out["si-reference-pairs"], out["si-pairs"])
+            checks["stiminfo"] = "yes" if ok else "**NO**"
+            details.append(f"stiminfo pairs, reference against this build: {text}")
+            extra, extra_derived = stiminfo_session.rows(m, checks["stiminfo"])
+        text, derived = table(m, k, kb, checks, kn, extra)
+        derived.update(extra_derived)
     finally:
         if not opt.keep:
             shutil.rmtree(folder, ignore_errors=True)
