@@ -129,9 +129,9 @@ def plan(opt, folder):
     return runs
 
 
-def same_numbers(reference_json, candidate_json):
-    done = subprocess.run([PYTHON, os.path.join(HERE, "same_results.py"), reference_json, candidate_json],
-                          capture_output=True, text=True)
+def same_numbers(reference_json, candidate_json, allow=()):
+    done = subprocess.run([PYTHON, os.path.join(HERE, "same_results.py"), reference_json, candidate_json] +
+                          [a for part in allow for a in ("--allow", part)], capture_output=True, text=True)
     return done.returncode == 0, done.stdout.strip()
 
 
@@ -294,7 +294,7 @@ def main():
         details.append(f"baseline on {2 * kb} units against this build: {text}")
         extra, extra_derived = [], {}
         if opt.stiminfo:
-            ok, text = same_numbers(out["si-reference-pairs"], out["si-pairs"])
+            ok, text = same_numbers(out["si-reference-pairs"], out["si-pairs"], stiminfo_session.ALLOWED_DIFFERENCES)
             checks["stiminfo"] = "yes" if ok else "**NO**"
             details.append(f"stiminfo pairs, reference against this build: {text}")
             extra, extra_derived = stiminfo_session.rows(m, checks["stiminfo"])

@@ -107,6 +107,10 @@ double standard_deviation(const std::vector<double>& values) {
 /// keeps settings.splits). Fewer splits make each resample's value noisier, never less so, so the
 /// spread can only grow; measured in notes/methods.md, section 8.3.
 constexpr unsigned population_bootstrap_splits = 2;
+/// The within-condition shuffles inside a bootstrap resample of a population (the estimate itself
+/// keeps --within-condition-shuffles): they enter only the shuffle-corrected value, whose spread over
+/// resamples they can only widen; measured in notes/methods.md, section 8.3.
+constexpr unsigned population_bootstrap_shuffles = 1;
 
 /// `joint_limit`: the joint responses the independent-units information may hold (check_stiminfo_memory).
 population_record population_of(const std::vector<labelled_responses>& units, const stiminfo_request& q,
@@ -133,7 +137,8 @@ population_record population_of(const std::vector<labelled_responses>& units, co
     resampled.splits = std::min(settings.splits, population_bootstrap_splits);
     for (unsigned b = 0; b < q.bootstrap; ++b) {
         boot.push_back(population_information(resample_within_conditions(units, members, rng), q.population_estimator,
-                                              resampled, q.within_condition_shuffles, joint_limit));
+                                              resampled, std::min(q.within_condition_shuffles, population_bootstrap_shuffles),
+                                              joint_limit));
     }
     for (auto field: population_fields) {
         std::vector<double> values;

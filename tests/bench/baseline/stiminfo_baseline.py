@@ -680,8 +680,10 @@ def analyse(name, members, cond, conditions, spikes_total, args, seed):
             for _ in range(args.bootstrap):
                 new_cond, new_resp = resample_within_conditions(cond, [m["resp"] for m in members], conditions, rng)
                 resampled = [{"resp": r, "alphabet": m["alphabet"]} for r, m in zip(new_resp, members)]
-                # Each resample's extrapolations use the first 2 splits only (notes/methods.md, 8.3).
-                boot.append(population_information(resampled, new_cond, conditions, est, min(splits, 2), seed))
+                # Each resample's extrapolations use the first 2 splits only, and its shuffle-corrected
+                # value 1 within-condition shuffle (notes/methods.md, 8.3).
+                boot.append(population_information(resampled, new_cond, conditions, est, min(splits, 2), seed,
+                                                   shuffles=1))
             for f in values:
                 sd = sample_sd([b[f] for b in boot])
                 low[f] -= 1.96 * sd
