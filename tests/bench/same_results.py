@@ -83,8 +83,8 @@ def check_lengths(c, where, ref, new):
         ok = new["fit_letters_from"] == "sampling rule" and last_row is not None and not last_row["well_sampled"]
     elif why == "--fit-letters":
         ok = new["fit_letters_from"] == "option" and last == new["fit_letters"][1]
-    else:
-        ok = False
+    else:  # any other reason ("calibration"): the reference stopped for it too, at the same length
+        ok = why == ref.get("letters_computed_until") and len(rows_new) == len(rows_ref)
     if not ok:
         c.problems.append(f"{where}: stopped at {last} letters for '{why}', which the reference's rows do not bear out")
 

@@ -128,13 +128,8 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
         for (unsigned k = 0; k < k_count; ++k) {
             rates.push_back(info_rate_over(sur_total[k], sur_noise[k], settings.letters_min, fit, bin_width));
         }
-        double mean = 0;
-        for (double r: rates) mean += r;
-        mean /= static_cast<double>(k_count);
-        double ss = 0;
-        for (double r: rates) ss += (r - mean) * (r - mean);
-        c.bias = mean - c.model_rate;
-        c.spread = std::sqrt(ss / static_cast<double>(k_count - 1));
+        c.bias = mean_of(rates) - c.model_rate;
+        c.spread = sd_of(rates);
         c.error = calibrated_error(c.bias, c.spread, k_count);
         c.within_tolerance = c.error <= calibration_tolerance(c.rate - c.bias, settings.error_tolerance,
                                                               settings.error_floor_bits_per_spike, rate_hz);

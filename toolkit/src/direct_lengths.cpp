@@ -73,19 +73,6 @@ double extrapolate_half(const std::vector<double>& h, const std::vector<std::siz
     return fit_inverse_size(x, y, w).at_infinity;
 }
 
-double mean_of(const std::vector<double>& v) {
-    double m = 0;
-    for (double x: v) m += x;
-    return m / static_cast<double>(v.size());
-}
-
-double sd_of(const std::vector<double>& v) {
-    const double m = mean_of(v);
-    double ss = 0;
-    for (double x: v) ss += (x - m) * (x - m);
-    return std::sqrt(ss / static_cast<double>(v.size() - 1));
-}
-
 /// The rate at infinite word length: total and noise entropy rates fitted linearly in 1/L.
 struct rate_fit {
     double total = 0, noise = 0, info = 0, info_se = 0;
@@ -119,6 +106,19 @@ std::vector<double> slice(const std::vector<double>& v, int from, int to) {
 
 
 }  // namespace
+
+double mean_of(const std::vector<double>& v) {
+    double m = 0;
+    for (double x: v) m += x;
+    return m / static_cast<double>(v.size());
+}
+
+double sd_of(const std::vector<double>& v) {
+    const double m = mean_of(v);
+    double ss = 0;
+    for (double x: v) ss += (x - m) * (x - m);
+    return std::sqrt(ss / static_cast<double>(v.size() - 1));
+}
 
 direct_lengths::direct_lengths(const sparse_letters& letters, seconds bin_width, const direct_settings& settings,
                                direct_workspace& workspace)

@@ -56,6 +56,9 @@ private:
 double info_rate_over(const std::vector<double>& total_bits, const std::vector<double>& noise_bits, int first_letters,
                       std::pair<int, int> fit, seconds bin_width);
 
+/// Mean, and sample standard deviation (n - 1), summed in order: the same bits wherever used.
+double mean_of(const std::vector<double>& v);
+double sd_of(const std::vector<double>& v);
 /// The direct method with its calibration (settings.surrogates > 0): direct_calibration.cpp.
 direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_width, const direct_settings& settings,
                                     direct_workspace& workspace);
