@@ -109,7 +109,9 @@ void budgeted_free(void* pointer, void*) { std::free(pointer); }
 std::optional<std::pair<std::size_t, std::uint64_t>> overlong_string(H5::H5File& file, const H5::DataSet& ds,
                                                                     std::size_t n, const std::string& path,
                                                                     std::uint64_t file_size) {
-    if (ds.getCreatePlist().getLayout() != H5D_CONTIGUOUS) return std::nullopt;
+    const H5::DSetCreatPropList layout = ds.getCreatePlist();
+    // Contiguous in this file only: external storage keeps the raw data in other files.
+    if (layout.getLayout() != H5D_CONTIGUOUS || layout.getExternalCount() > 0) return std::nullopt;
     const haddr_t offset = H5Dget_offset(ds.getId());
     if (offset == HADDR_UNDEF || offset >= file_size) return std::nullopt;
     std::size_t address_size = 0;
