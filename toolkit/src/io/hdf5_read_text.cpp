@@ -3,7 +3,9 @@
 
 #include <rastrum/format.hpp>
 
+#include <algorithm>
 #include <cmath>
+#include <iterator>
 #include <cstdlib>
 #include <fstream>
 #include <functional>
@@ -76,11 +78,21 @@ std::vector<std::string> decode_strings(const H5::DataType& file_type, std::size
 }
 
 // Allocation of variable-length strings within a number of bytes; the first request beyond what
-// remains is refused (the read then fails) and remembered for the message.
+// remains is refused (the read then fails) and remembered for the message. The budget owns what it
+// allocated and frees it when it goes: a read that fails part way leaves strings that libhdf5 had
+// converted but not yet handed over (in its own conversion buffer, out of our reach).
 struct string_budget {
     std::uint64_t remaining = 0;
     bool exceeded = false;
     std::uint64_t refused = 0;
+    std::vector<void*> allocated;
+
+    explicit string_budget(std::uint64_t bytes): remaining(bytes) {}
+    ~string_budget() {
+        for (void* p: allocated) std::free(p);
+    }
+    string_budget(const string_budget&) = delete;
+    string_budget& operator=(const string_budget&) = delete;
 };
 
 void* budgeted_allocate(std::size_t size, void* info) {
@@ -90,11 +102,24 @@ void* budgeted_allocate(std::size_t size, void* info) {
         budget.refused = size;
         return nullptr;
     }
+    void* p = std::malloc(size);
+    if (p == nullptr) return nullptr;
     budget.remaining -= size;
-    return std::malloc(size);
+    budget.allocated.push_back(p);
+    return p;
 }
 
-void budgeted_free(void* pointer, void*) { std::free(pointer); }
+// libhdf5 gives back a string it allocated (while cleaning up a failed conversion) through this.
+void budgeted_free(void* pointer, void* info) {
+    auto& allocated = static_cast<string_budget*>(info)->allocated;
+    const auto at = std::find(allocated.rbegin(), allocated.rend(), pointer);
+    if (at == allocated.rend()) return;
+    allocated.erase(std::next(at).base());
+    std::free(pointer);
+}
+
+// The strings read into the caller's buffer stay the budget's until it goes.
+void left_to_the_budget(void*, void*) {}
 
 
 // libhdf5 allocates, and zeroes, a buffer of each variable-length string's stated length before it
@@ -148,9 +173,9 @@ std::vector<std::string> source::read_string_elements(const H5::DataSet& ds, con
                               "a stated length of " + bytes_text(overlong->second));
         }
     }
-    string_budget budget{file_size_ + elements};  // + a terminating NUL per string
+    string_budget budget(file_size_ + elements);  // + a terminating NUL per string
     H5::DSetMemXferPropList transfer;
-    transfer.setVlenMemManager(budgeted_allocate, &budget, budgeted_free, nullptr);
+    transfer.setVlenMemManager(budgeted_allocate, &budget, budgeted_free, &budget);
     std::vector<std::string> values;
     try {
         values = decode_strings(
@@ -158,7 +183,7 @@ std::vector<std::string> source::read_string_elements(const H5::DataSet& ds, con
             [&](void* buffer, const H5::DataType& memory) {
                 ds.read(buffer, memory, H5::DataSpace::ALL, H5::DataSpace::ALL, transfer);
             },
-            budgeted_free);
+            left_to_the_budget);
     } catch (const H5::Exception&) {
         if (!budget.exceeded) throw;
         throw input_error(path_, object, "strings that fit in the file (" + bytes_text(file_size_) + ")",
