@@ -11,22 +11,13 @@
 set -euo pipefail
 what=$1 rastrum=$2 session=$3
 
-# Session: 4 labels x 50 trials of 10 s; unit i fires a Poisson count of mean 100 (1 + d cos(2 pi
-# (c - p) / 4)) spikes in label c = 0..3 (10 Hz on average), with tuning depth d = 0.05 (i mod 5)
-# (every fifth unit untuned) and preferred label p = i mod 4.
-session_means() {
-  /usr/bin/python3 -c '
-import math
-for i in range(1000):
-    d, p = (i % 5) * 0.05, i % 4
-    print("--means " + ",".join("%.4g" % (100 * (1 + d * math.cos(2 * math.pi * (c - p) / 4))) for c in range(4)))'
-}
-
 case $what in
 make)
+  # The session's arguments (4 labels x 50 trials of 10 s, the units' tuning) are stiminfo_session.py's.
+  here=$(cd "$(dirname "$0")" && pwd)
   # shellcheck disable=SC2046
-  "$rastrum" synth conditions --out "$session" --seed 63 --labels a,b,c,d --trials-per-condition 50 \
-    --duration-s 10 $(session_means) ;;
+  "$rastrum" $(/usr/bin/python3 -c 'import sys; sys.dont_write_bytecode = True; sys.path.insert(0, sys.argv[1])
+import stiminfo_session; print(" ".join(stiminfo_session.session_synth(sys.argv[2])))' "$here" "$session") ;;
 run)
   out=$4 units=${5:-1000} threads=${6:-1}
   args=()

@@ -3,9 +3,9 @@
 
 - stimulus information over a 1,000-unit session, every unit alone and its 999 neighbouring pairs
   (u1,u2 ... u999,u1000), count code over the whole 10 s trial, default shuffles and resamples, one
-  thread; target 300 CPU-s. The session is the one tests/bench/session_stiminfo.sh makes (4 labels x
+  thread; target 300 CPU-s. The session (also made by tests/bench/session_stiminfo.sh) has 4 labels x
   50 trials of 10 s, unit i Poisson with mean 100 (1 + d cos(2 pi (c - p) / 4)) spikes in label c,
-  d = 0.05 (i mod 5), p = i mod 4: 10 Hz on average, every fifth unit untuned);
+  d = 0.05 (i mod 5), p = i mod 4: 10 Hz on average, every fifth unit untuned;
 - what a pair costs against a unit, from three runs of this build: u1 alone (U1), u1 ... u101 (U),
   and the 100 pairs u1,u2 ... u100,u101 (P, which also writes the records of their 101 members). A
   pair's record costs (P - U) / 100 and a unit's (U - U1) / 100; target: a pair at most 3 units;

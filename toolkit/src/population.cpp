@@ -230,6 +230,8 @@ population_values population_information_given(const std::vector<labelled_respon
 
 population_values population_information(const std::vector<labelled_responses>& units, info_estimator estimator,
                                          const info_settings& settings, unsigned shuffles, std::size_t joint_limit) {
+    // The other values first, as before the split: a population refused for its joint responses
+    // is refused for that, before the independent-units term's own bound is checked.
     population_values v = population_information_given(units, estimator, settings, shuffles, 0.0);
     v.independent = independent_extrapolated(units, settings, joint_limit);
     return v;

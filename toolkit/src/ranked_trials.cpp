@@ -14,8 +14,8 @@ std::size_t rank_by_code(const std::vector<word_code>& response, std::vector<std
     const auto [low, high] = std::minmax_element(response.begin(), response.end());
     const word_code lowest = *low;
     const word_code span = *high - lowest;  // codes are lowest + [0, span]
-    const std::size_t words = static_cast<std::size_t>(span / 64) + 1;
     if (span / 64 <= 8 * response.size() + 64) {
+        const std::size_t words = static_cast<std::size_t>(span / 64) + 1;
         std::vector<std::uint64_t> present(words, 0);
         for (const word_code c: response) present[(c - lowest) / 64] |= std::uint64_t{1} << ((c - lowest) % 64);
         std::vector<std::uint32_t> below(words);  // distinct codes in the words before

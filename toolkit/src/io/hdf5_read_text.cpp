@@ -5,12 +5,12 @@
 
 #include <algorithm>
 #include <cmath>
-#include <iterator>
 #include <cstdlib>
 #include <fstream>
 #include <functional>
-#include <optional>
+#include <iterator>
 #include <limits>
+#include <optional>
 
 namespace rastrum::hdf5 {
 
@@ -22,9 +22,9 @@ namespace {
 using raw_read = std::function<void(void* buffer, const H5::DataType& memory_type)>;
 
 // How the pointers of variable-length strings are freed: by the allocator that made them.
-using vlen_release = void (*)(void* pointer, void* info);
+using vlen_release = void (*)(void* pointer);
 
-void library_free(void* pointer, void*) { H5free_memory(pointer); }
+void library_free(void* pointer) { H5free_memory(pointer); }
 
 // Variable-length strings come back as allocated pointers; this frees them on every path,
 // including a read that failed half way (libhdf5 stores a pointer only once it is filled).
@@ -34,7 +34,7 @@ struct vlen_buffer {
     vlen_buffer(std::size_t n, vlen_release how): pointers(n, nullptr), release(how) {}
     ~vlen_buffer() {
         for (char* p: pointers) {
-            if (p != nullptr) release(p, nullptr);
+            if (p != nullptr) release(p);
         }
     }
     vlen_buffer(const vlen_buffer&) = delete;
@@ -119,7 +119,7 @@ void budgeted_free(void* pointer, void* info) {
 }
 
 // The strings read into the caller's buffer stay the budget's until it goes.
-void left_to_the_budget(void*, void*) {}
+void left_to_the_budget(void*) {}
 
 
 // libhdf5 allocates, and zeroes, a buffer of each variable-length string's stated length before it
@@ -129,7 +129,7 @@ void left_to_the_budget(void*, void*) {}
 // is returned (its index and length). Each descriptor is a 4-byte little-endian length, then the
 // global heap collection's address and the object's 4-byte index (The HDF Group, HDF5 File Format
 // Specification version 3, "Variable-length" datatype, and the global heap ID); the stride is
-// checked against real files in tests/test_recording_hdf5.cpp. Compact and chunked layouts are
+// checked against real files in tests/test_recording_hdf5_damaged.cpp. Compact and chunked layouts are
 // left to the library, and to the string budget.
 std::optional<std::pair<std::size_t, std::uint64_t>> overlong_string(H5::H5File& file, const H5::DataSet& ds,
                                                                     std::size_t n, const std::string& path,
@@ -160,12 +160,9 @@ std::optional<std::pair<std::size_t, std::uint64_t>> overlong_string(H5::H5File&
 
 std::vector<std::string> source::read_string_elements(const H5::DataSet& ds, const H5::StrType& type,
                                                       std::size_t elements, const std::string& object) {
-    // Each variable-length string is allocated by libhdf5 at the length the file states, and the
-    // global heap that holds those lengths has no checksum in HDF5 1.10: one damaged length would
-    // have the library fill gigabytes before any check could run (H5Dvlen_get_buf_size converts
-    // every string to measure them). So the strings are allocated from a budget of the file's own
-    // size (no string of a file is longer than the file, whatever elements share it), and the read
-    // stops at the first string beyond it.
+    // A damaged stated length is refused before libhdf5 sees it (overlong_string), and the strings
+    // are allocated from a budget of the file's own size (no string of a file is longer than the
+    // file, whatever elements share it): the read stops at the first string beyond it.
     if (H5Tis_variable_str(type.getId()) > 0) {
         if (const auto overlong = overlong_string(file_, ds, elements, path_, file_size_)) {
             throw input_error(path_, element_path(object, overlong->first),
