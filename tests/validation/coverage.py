@@ -107,6 +107,10 @@ DESIGNS = [
                   "info_rate_bits_per_s", ["patterns", "--trials", "60"] + SHORT, letters="1-12"),
     direct_design("patterns, 400 trials", ["patterns", "--trials", "400", "--duration-s", "4"], [],
                   "info_rate_bits_per_s", ["patterns", "--trials", "80"] + SHORT, letters="1-12"),
+    # The same unit with little data (60 trials of 1 s): errors near and beyond the tolerance, where the
+    # uncertainty caution must fire.
+    direct_design("patterns, 60 trials of 1 s", ["patterns", "--trials", "60", "--duration-s", "1"], [],
+                  "info_rate_bits_per_s", ["patterns", "--trials", "40"] + SHORT, letters="1-12"),
     # The same unit with the fit range given (--fit-letters 2-6): what the estimator sees when the
     # word lengths are not chosen by the sampling rule.
     direct_design("patterns, 200 trials, fit 2-6", ["patterns", "--trials", "200", "--duration-s", "4"],

@@ -86,10 +86,11 @@ void check_direct_memory(const recording& rec, const direct_request& q, const st
                         per_trial_held * t + subset_tallies(t, q.settings.splits);
     // The calibration's surrogates (direct_calibration.cpp): each holds its own letters (8 bytes a
     // spike), words and tallies, and the model two letter distributions per bin; its enumeration of
-    // pooled words at most 2^14 doubles twice.
+    // pooled words at most 2^14 doubles twice. An uncertain record's surrogates of 4 times the
+    // trials are drawn one at a time into the first surrogate's buffers: about 4 surrogates' worth.
     const double surrogates = q.settings.surrogates;
     const double calibration = surrogates == 0 ? 0
-                                               : surrogates * (8 * spikes + per_position * bins +
+                                               : std::max(surrogates, 4.0) * (8 * spikes + per_position * bins +
                                                                per_spiky_word * std::min(spikes * letters, cells) +
                                                                subset_tallies(t, q.settings.splits)) +
                                                      2 * 8 * 8 * bins + 2 * 8 * 16384;

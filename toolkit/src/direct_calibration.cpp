@@ -7,9 +7,13 @@
 #include "direct_lengths.hpp"
 #include "direct_workspace.hpp"
 
+#include <boost/math/distributions/students_t.hpp>
+
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <memory>
+#include <string>
 
 namespace rastrum {
 
@@ -28,11 +32,74 @@ double calibrated_error(double bias, double spread, unsigned surrogates) {
     return std::sqrt(spread * spread * (1 + 1 / k) + bias_allowance * bias_allowance * bias * bias);
 }
 
+double calibrated_interval_factor(unsigned surrogates) {
+    if (surrogates < 2) throw internal_error("calibrated_interval_factor: fewer than 2 surrogates");
+    return boost::math::quantile(boost::math::students_t(static_cast<double>(surrogates - 1)), 0.975);
+}
+
+std::size_t trials_for_tolerance(std::size_t trials, const std::array<double, 3>& errors, double tolerance) {
+    // Least squares of log error on log multiple (0, log 2, log 4): slope and value at the mean.
+    const double x[3] = {0, std::log(2.0), std::log(4.0)};
+    const double mean_x = (x[0] + x[1] + x[2]) / 3;
+    double mean_y = 0;
+    for (double e: errors) {
+        if (!(e > 0)) return 0;
+        mean_y += std::log(e) / 3;
+    }
+    double sxy = 0, sxx = 0;
+    for (int i = 0; i < 3; ++i) {
+        sxy += (x[i] - mean_x) * (std::log(errors[static_cast<std::size_t>(i)]) - mean_y);
+        sxx += (x[i] - mean_x) * (x[i] - mean_x);
+    }
+    const double slope = sxy / sxx;
+    if (!(slope < 0) || !(tolerance > 0)) return 0;
+    const double multiple = std::exp(mean_x + (std::log(tolerance) - mean_y) / slope);
+    if (!(multiple <= 16)) return 0;
+    // Up to the next whole trial, but not for the rounding of the logs (4 x 10 trials is 40).
+    const double needed = std::max(multiple, 1.0) * static_cast<double>(trials);
+    return static_cast<std::size_t>(std::ceil(needed * (1 - 1e-12)));
+}
+
 namespace {
 
 // Random tags of the surrogates' streams (derive_seed), apart from every other use of the seed.
 constexpr std::uint64_t surrogate_draw_tag = 0xca11b7a7e0ULL;
 constexpr std::uint64_t surrogate_split_tag = 0xca11b7a7e1ULL;
+constexpr std::uint64_t larger_draw_tag = 0xca11b7a7e2ULL;
+constexpr std::uint64_t larger_split_tag = 0xca11b7a7e3ULL;
+static_assert(subset_estimator_count == 3, "rate_calibration::by_estimator holds three estimators");
+
+/// The calibrated error of range `fit` with `multiple` times the record's trials: as many surrogates
+/// as the calibration's, drawn from the model one at a time into the first surrogate's buffers,
+/// each grown alone to the range's longest words.
+double error_with_more_trials(const letter_chain& model, std::size_t trials, unsigned multiple, const calibrated_fit& fit,
+                              seconds bin_width, const direct_settings& settings,
+                              direct_workspace::parts::surrogate_parts& buffers) {
+    direct_settings s = settings;
+    s.surrogates = 0;
+    s.splits = std::min(settings.surrogate_splits, settings.splits);
+    s.letters_max = fit.fit.second;
+    s.fit_letters.reset();
+    std::vector<double> rates;
+    for (unsigned k = 0; k < settings.surrogates; ++k) {
+        model.draw(trials * multiple, derive_seed(settings.seed, {larger_draw_tag, multiple, k}), buffers.letters);
+        s.seed = derive_seed(settings.seed, {larger_split_tag, multiple, k});
+        direct_lengths lengths(buffers.letters, bin_width, s, *buffers.workspace);
+        std::vector<double> total, noise;
+        while (lengths.more()) {
+            const letters_estimate& e = lengths.next();
+            total.push_back(e.total_bits);
+            noise.push_back(e.noise_bits);
+        }
+        rates.push_back(info_rate_over(total, noise, s.letters_min, fit.fit, bin_width));
+    }
+    return calibrated_error(mean_of(rates) - fit.model_rate, sd_of(rates), settings.surrogates);
+}
+
+/// The information rate over `fit` of one estimator's extrapolated informations per length.
+double info_rate_of(const std::vector<double>& info_bits, int first_letters, std::pair<int, int> fit, seconds bin_width) {
+    return info_rate_over(info_bits, std::vector<double>(info_bits.size(), 0.0), first_letters, fit, bin_width);
+}
 
 /// One surrogate's estimate, grown in step with the record's; its letters and buffers are the
 /// thread's (direct_workspace::parts::surrogates), kept from record to record.
@@ -55,19 +122,23 @@ std::pair<int, int> upper_half(int b, int letters_min) { return {std::max(letter
 /// information. Of those the shortest that extrapolates (ends past the shortest length) is
 /// reported, or the shortest when none does: chosen by position, not by the smallest error, whose
 /// estimate from a few surrogates is itself noisy (picking the smallest picks an underestimate).
-/// When no range is within tolerance, the extrapolating one with the smallest error.
+/// When no range is within tolerance, the extrapolating one with the smallest error. Single letters
+/// are blind to patterns: once a range that extrapolates has been examined, a single-letter range
+/// within tolerance does not count as one (with 60 trials a pattern unit's 1-letter rate of about 0
+/// met the tolerance while its 1-2 range did not, and a confident zero was reported).
 std::size_t choose_fit(const std::vector<calibrated_fit>& by_fit) {
+    auto extrapolates = [](const calibrated_fit& c) { return c.fit.first < c.fit.second; };
+    const bool any_extrapolates = std::any_of(by_fit.begin(), by_fit.end(), extrapolates);
     std::size_t longest = by_fit.size();
     for (std::size_t i = 0; i < by_fit.size(); ++i) {
-        if (by_fit[i].within_tolerance) longest = i;
+        if (by_fit[i].within_tolerance && (extrapolates(by_fit[i]) || !any_extrapolates)) longest = i;
     }
     if (longest == by_fit.size()) {
         // None within tolerance: the smallest error among the ranges that extrapolate, when there
         // are any (single letters measure another quantity, blind to patterns), else the first.
         std::size_t best = by_fit.size();
         for (std::size_t i = 0; i < by_fit.size(); ++i) {
-            const bool extrapolates = by_fit[i].fit.first < by_fit[i].fit.second;
-            if (extrapolates && (best == by_fit.size() || by_fit[i].error < by_fit[best].error)) best = i;
+            if (extrapolates(by_fit[i]) && (best == by_fit.size() || by_fit[i].error < by_fit[best].error)) best = i;
         }
         return best == by_fit.size() ? 0 : best;
     }
@@ -77,7 +148,7 @@ std::size_t choose_fit(const std::vector<calibrated_fit>& by_fit) {
         return c.within_tolerance && std::abs(gap) <= 1.96 * std::hypot(c.error, reference.error);
     };
     for (std::size_t i = 0; i < by_fit.size(); ++i) {
-        if (agrees(by_fit[i]) && by_fit[i].fit.first < by_fit[i].fit.second) return i;
+        if (agrees(by_fit[i]) && extrapolates(by_fit[i])) return i;
     }
     for (std::size_t i = 0; i < by_fit.size(); ++i) {
         if (agrees(by_fit[i])) return i;
@@ -115,6 +186,9 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
     const double rate_hz = mean_rate_hz(letters, bin_width);
     std::vector<double> model_total, model_noise;
     std::vector<std::vector<double>> sur_total(k_count), sur_noise(k_count);
+    // Each surrogate's information per length by every subset estimator: [estimator][surrogate].
+    std::array<std::vector<std::vector<double>>, subset_estimator_count> sur_info;
+    for (auto& by_surrogate: sur_info) by_surrogate.resize(k_count);
     rate_calibration cal;
     cal.surrogates = k_count;
     length_stop stop = length_stop::letters_max;
@@ -143,6 +217,7 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
             const letters_estimate& e = surrogates[k].lengths->next();
             sur_total[k].push_back(e.total_bits);
             sur_noise[k].push_back(e.noise_bits);
+            for (std::size_t m = 0; m < sur_info.size(); ++m) sur_info[m][k].push_back(e.info_bits_by_estimator[m]);
         }
         const auto exact = model.entropies(L);
         model_total.push_back(exact.total);
@@ -174,6 +249,30 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
     cal.tolerance = calibration_tolerance(chosen.rate - chosen.bias, settings.error_tolerance,
                                           settings.error_floor_bits_per_spike, rate_hz);
 
+    // Every subset estimator on the same surrogates at the chosen range, for the record (not to
+    // choose one: an estimator's error at the fitted model is not its error at the truth; notes/
+    // methods-calibration.md, "Subset estimators").
+    for (std::size_t m = 0; m < sur_info.size(); ++m) {
+        std::vector<double> rates;
+        for (unsigned k = 0; k < k_count; ++k) {
+            rates.push_back(info_rate_of(sur_info[m][k], settings.letters_min, chosen.fit, bin_width));
+        }
+        estimator_calibration& c = cal.by_estimator[m];
+        c.bias = mean_of(rates) - chosen.model_rate;
+        c.spread = sd_of(rates);
+        c.rmse = std::hypot(c.bias, c.spread);
+        c.error = calibrated_error(c.bias, c.spread, k_count);
+    }
+
+    // An uncertain record: how many trials would bring the chosen range within the tolerance.
+    surrogates.clear();  // their buffers are reused below
+    if (cal.uncertain) {
+        cal.error_by_trials[0] = chosen.error;
+        cal.error_by_trials[1] = error_with_more_trials(model, letters.trials, 2, chosen, bin_width, settings, kept[0]);
+        cal.error_by_trials[2] = error_with_more_trials(model, letters.trials, 4, chosen, bin_width, settings, kept[0]);
+        cal.trials_needed = trials_for_tolerance(letters.trials, cal.error_by_trials, cal.tolerance);
+    }
+
     fit_choice choice;
     choice.letters = chosen.fit;
     choice.from_user = settings.fit_letters.has_value();
@@ -183,7 +282,11 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
             format_fixed(chosen.error, 2) + " bits/s, exceeds the tolerance of " + format_fixed(cal.tolerance, 2) +
             " bits/s (" + format_fixed(100 * settings.error_tolerance, 0) + "% of the rate, or " +
             format_number(settings.error_floor_bits_per_spike) +
-            " bits per spike); more trials, wider bins or shorter words would help");
+            " bits per spike); " +
+            (cal.trials_needed > 0
+                 ? "about " + std::to_string(cal.trials_needed) + " trials would bring it within (measured on surrogates of 2 and 4 times the trials)"
+                 : std::string("more than 16 times the trials would be needed (measured on surrogates of 2 and 4 times the trials)")) +
+            "; wider bins or shorter words also help");
     }
     if (!choice.from_user && chosen.fit.first == chosen.fit.second) {
         choice.warnings.push_back("the rate comes from " + std::to_string(chosen.fit.first) +

@@ -268,7 +268,8 @@ direct_estimate direct_lengths::finish(fit_choice choice, length_stop stop, std:
         const calibrated_fit& c = calibration->by_fit.at(calibration->chosen);
         out_.info_rate = c.rate - c.bias;
         out_.info_rate_se = c.error;
-        out_.info_rate_ci95 = {out_.info_rate - 1.96 * c.error, out_.info_rate + 1.96 * c.error};
+        const double t = calibrated_interval_factor(calibration->surrogates);
+        out_.info_rate_ci95 = {out_.info_rate - t * c.error, out_.info_rate + t * c.error};
         out_.calibration = std::move(calibration);
     }
 

@@ -46,7 +46,20 @@ json calibration_json(const direct_estimate& e) {
                           {"error_bits_per_s", f.error},
                           {"within_tolerance", f.within_tolerance}});
     }
+    json by_estimator = json::object();
+    for (std::size_t m = 0; m < c.by_estimator.size(); ++m) {
+        const estimator_calibration& x = c.by_estimator[m];
+        by_estimator[subset_estimator_name(static_cast<subset_estimator>(m))] = {
+            {"bias_bits_per_s", x.bias}, {"spread_bits_per_s", x.spread}, {"rmse_bits_per_s", x.rmse}, {"error_bits_per_s", x.error}};
+    }
+    json larger = nullptr;
+    if (c.uncertain) {
+        larger = {{"error_bits_per_s_at_1_2_4_times_the_trials", c.error_by_trials},
+                  {"trials_needed", c.trials_needed > 0 ? json(c.trials_needed) : json(nullptr)}};
+    }
     return {{"surrogates", c.surrogates},
+            {"by_subset_estimator", by_estimator},
+            {"more_trials", larger},
             {"tolerance_bits_per_s", c.tolerance},
             {"uncertain", c.uncertain},
             {"bias_bits_per_s", c.by_fit[c.chosen].bias},
