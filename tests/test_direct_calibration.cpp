@@ -198,7 +198,9 @@ TEST(direct_calibration, single_letters_alone_within_tolerance_do_not_make_a_con
                                  std::none_of(c.by_fit.begin() + 1, c.by_fit.end(), [](const calibrated_fit& f) { return f.within_tolerance; });
         single_letters_within += only_single;
         EXPECT_GT(r.estimate.fit_letters.second, r.estimate.fit_letters.first) << "seed " << seed;
-        if (only_single) EXPECT_TRUE(c.uncertain) << "seed " << seed;
+        if (only_single) {
+            EXPECT_TRUE(c.uncertain) << "seed " << seed;
+        }
     }
     EXPECT_GE(single_letters_within, 1);
 }
@@ -231,6 +233,29 @@ TEST(direct_calibration, trials_for_a_tolerance_follow_the_line_through_the_erro
     EXPECT_EQ(trials_for_tolerance(10, root, 0.25), 160u);
     EXPECT_EQ(trials_for_tolerance(10, root, 2.0), 10u);  // already met: the record's own trials
     EXPECT_EQ(trials_for_tolerance(10, root, 0.2), 0u);   // 25 times the trials
+    // Halved from 10 to 20 trials (an error falling as 1/n there), flattening beyond: the line through
+    // all three passes below the record's own error at 10 trials, so the first segment speaks, and
+    // a tolerance of 0.95 is met at 10 / 0.95 = 10.5 trials (analytic).
+    EXPECT_EQ(trials_for_tolerance(10, {1.0, 0.5, 0.45}, 0.95), 11u);
     EXPECT_EQ(trials_for_tolerance(10, {1.0, 1.0, 1.1}, 0.5), 0u);
     EXPECT_EQ(trials_for_tolerance(10, {1.0, 0.0, 0.5}, 0.5), 0u);
+}
+
+// --every-length computes every length for the curves; the calibrated rate, its range and interval
+// are those without it (the search and its surrogates stop where they would).
+TEST(direct_calibration, every_length_changes_no_calibrated_rate) {
+    patterns_spec spec = pattern_unit(60, 2);
+    spec.session.duration = 1.0;
+    const recording rec = make_patterns(spec).rec;
+    direct_request q = calibrated(8);
+    const direct_record once = run_direct(rec, q)[0];
+    q.settings.every_length = true;
+    const direct_record every = run_direct(rec, q)[0];
+    EXPECT_EQ(every.estimate.by_letters.size(), 8u);
+    EXPECT_LT(once.estimate.by_letters.size(), every.estimate.by_letters.size());
+    EXPECT_EQ(once.estimate.fit_letters, every.estimate.fit_letters);
+    EXPECT_EQ(once.estimate.info_rate, every.estimate.info_rate);
+    EXPECT_EQ(once.estimate.info_rate_ci95, every.estimate.info_rate_ci95);
+    EXPECT_EQ(once.estimate.calibration->by_fit.size(), every.estimate.calibration->by_fit.size());
+    EXPECT_EQ(once.warnings, every.warnings);
 }

@@ -53,7 +53,14 @@ std::size_t trials_for_tolerance(std::size_t trials, const std::array<double, 3>
     }
     const double slope = sxy / sxx;
     if (!(slope < 0) || !(tolerance > 0)) return 0;
-    const double multiple = std::exp(mean_x + (std::log(tolerance) - mean_y) / slope);
+    double multiple = std::exp(mean_x + (std::log(tolerance) - mean_y) / slope);
+    if (multiple <= 1 && errors[0] > tolerance) {
+        // The line passes below the record's own error: from the record's error toward the error at
+        // twice its trials instead, so that more trials than the record's are named.
+        const double first = (std::log(errors[1]) - std::log(errors[0])) / x[1];
+        if (!(first < 0)) return 0;
+        multiple = std::exp((std::log(tolerance) - std::log(errors[0])) / first);
+    }
     if (!(multiple <= 16)) return 0;
     // Up to the next whole trial, but not for the rounding of the logs (4 x 10 trials is 40).
     const double needed = std::max(multiple, 1.0) * static_cast<double>(trials);
@@ -211,8 +218,12 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
         return c.within_tolerance;
     };
 
+    // With --every-length the record computes every length for the curves, but the search, and the
+    // surrogates, stop where they would without it: the rates do not depend on the option.
+    bool searching = true;
     while (record.more()) {
         const int L = record.next().letters;
+        if (!searching) continue;
         for (unsigned k = 0; k < k_count; ++k) {
             const letters_estimate& e = surrogates[k].lengths->next();
             sur_total[k].push_back(e.total_bits);
@@ -222,26 +233,26 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
         const auto exact = model.entropies(L);
         model_total.push_back(exact.total);
         model_noise.push_back(exact.noise);
+        bool done = false;
         if (settings.fit_letters) {
             if (L == settings.fit_letters->second) {
                 examine(*settings.fit_letters);
                 stop = length_stop::fit_letters;
-                break;
+                done = true;
             }
-            continue;
-        }
-        // Errors grow with word length: the first range beyond the tolerance ends the search, once
-        // a range that extrapolates has been seen (single letters failing says nothing of patterns).
-        const bool within = examine(upper_half(L, settings.letters_min));
-        if (!within && L > settings.letters_min && !settings.every_length) {
+        } else if (!examine(upper_half(L, settings.letters_min)) && L > settings.letters_min) {
+            // Errors grow with word length: the first range beyond the tolerance ends the search, once
+            // a range that extrapolates has been seen (single letters failing says nothing of patterns).
             stop = length_stop::calibration;
-            break;
-        }
-        if (L == ceiling) {
+            done = true;
+        } else if (L == ceiling) {
             stop = ceiling < settings.letters_max ? length_stop::calibration : length_stop::letters_max;
-            break;
+            done = true;
         }
+        if (done && !settings.every_length) break;
+        searching = !done;
     }
+    if (settings.every_length) stop = length_stop::letters_max;
 
     cal.chosen = choose_fit(cal.by_fit);
     const calibrated_fit& chosen = cal.by_fit[cal.chosen];
