@@ -53,39 +53,88 @@ response_model::response_model(const labelled_responses& t, response_smoothing s
         for (double& x: f[s]) x = n[s] > 0 ? x / n[s] : 0;
     }
     for (double& x: g) x /= total;
-    // Variance matching. With S conditions of n_s trials (N in all) and no information, the weighted
-    // squared distance of the frequencies from the pooled ones, V = sum_s w_s |f_s - g|^2, has
-    // expectation c (S - 1) / N, c = sum_r g_r (1 - g_r) (binomial noise, g estimated from the same
-    // trials: c = (1 - sum g^2) N / (N - 1)). What V holds beyond that, tau2, is the spread of the true
-    // distributions about the pooled one; condition s's own distance has noise c (1 / n_s - 1 / N), and
-    // k_s = sqrt(tau2 / (tau2 + that)) gives the model's conditions about the spread tau2.
-    double sum_g2 = 0;
-    for (double x: g) sum_g2 += x * x;
-    const double c = total > 1 ? (1 - sum_g2) * total / (total - 1) : 0;
+    // Variance matching, in the metric of the information: for small differences between conditions
+    // I ~ X / (2 ln 2) with X = sum_s w_s sum_r (f_s(r) - g(r))^2 / g(r) (the chi-square divergence
+    // from the pooled distribution). With R responses seen, S conditions of n_s trials (N in all) and
+    // no information, X has expectation (R - 1)(S - 1) / N (Pearson's chi-square over N; the same
+    // count of cells that makes the Miller-Madow and Panzeri-Treves corrections). What X holds
+    // beyond that, tau2, is the spread of the true distributions about the pooled one; condition s's
+    // own term has noise (R - 1)(1 / n_s - 1 / N), and k_s = sqrt(tau2 / (tau2 + that)) leaves the
+    // model's conditions about the spread tau2 (Louis 1984).
+    const double cells = static_cast<double>(size) - 1;
     double observed = 0;
     for (std::size_t s = 0; s < conditions; ++s) {
         double d = 0;
-        for (std::size_t i = 0; i < size; ++i) d += (f[s][i] - g[i]) * (f[s][i] - g[i]);
+        for (std::size_t i = 0; i < size; ++i) d += (f[s][i] - g[i]) * (f[s][i] - g[i]) / g[i];
         observed += weights_[s] * d;
     }
-    const double tau2 = std::max(0.0, observed - c * (live - 1) / total);
+    const double tau2 = std::max(0.0, observed - cells * (live - 1) / total);
     for (std::size_t s = 0; s < conditions; ++s) {
         double k = 1;
         if (smoothing == response_smoothing::variance_matched) {
-            const double noise = n[s] > 0 ? c * (1 / n[s] - 1 / total) : 0;
+            const double noise = n[s] > 0 ? cells * (1 / n[s] - 1 / total) : 0;
             k = tau2 + noise > 0 ? std::sqrt(tau2 / (tau2 + noise)) : 0;
         }
-        shrinkage_.push_back(k);
-        std::vector<double> p(size);
-        for (std::size_t i = 0; i < size; ++i) p[i] = n[s] > 0 ? g[i] + k * (f[s][i] - g[i]) : g[i];
-        probabilities_.push_back(std::move(p));
+        shrinkage_.push_back(n[s] > 0 ? k : 0);
+        frequencies_.push_back(n[s] > 0 ? f[s] : g);
     }
+    pooled_ = std::move(g);
+    set_shrinkage(shrinkage_);
+}
+
+void response_model::set_shrinkage(const std::vector<double>& k) {
+    shrinkage_ = k;
+    probabilities_.assign(k.size(), std::vector<double>(pooled_.size()));
+    for (std::size_t s = 0; s < k.size(); ++s) {
+        for (std::size_t i = 0; i < pooled_.size(); ++i) {
+            probabilities_[s][i] = pooled_[i] + k[s] * (frequencies_[s][i] - pooled_[i]);
+        }
+    }
+}
+
+response_model response_model::matched_to(double target_bits) const {
+    // Along the ray k_s = min(1, lambda r_s), r_s the factors relative to the largest (all 1 when
+    // every factor is 0), the information grows with lambda (it is convex in p(r|s) and 0 at
+    // lambda = 0: Cover & Thomas 2006, theorem 2.7.4), so bisection finds the lambda that gives it.
+    const double largest = *std::max_element(shrinkage_.begin(), shrinkage_.end());
+    std::vector<double> r(shrinkage_.size(), 1.0);
+    double smallest = 1;
+    for (std::size_t s = 0; s < r.size(); ++s) {
+        if (largest > 0) r[s] = shrinkage_[s] / largest;
+        if (weights_[s] > 0 && r[s] > 0) smallest = std::min(smallest, r[s]);
+    }
+    response_model m = *this;
+    auto at = [&](double lambda) {
+        std::vector<double> k(r.size());
+        for (std::size_t s = 0; s < r.size(); ++s) k[s] = std::min(1.0, lambda * r[s]);
+        m.set_shrinkage(k);
+        return m.information();
+    };
+    double low = 0, high = 1 / smallest;
+    if (!(target_bits > 0)) {
+        at(0);
+        return m;
+    }
+    if (at(high) <= target_bits) return m;  // the raw frequencies carry no more than the target
+    for (int i = 0; i < 60; ++i) {
+        const double mid = (low + high) / 2;
+        (at(mid) < target_bits ? low : high) = mid;
+    }
+    at((low + high) / 2);
+    return m;
 }
 
 response_model::response_model(std::vector<word_code> responses, std::vector<std::vector<double>> probabilities,
                                std::vector<double> weights, double alphabet)
     : responses_(std::move(responses)), probabilities_(std::move(probabilities)), weights_(std::move(weights)),
       shrinkage_(weights_.size(), 1.0), alphabet_(alphabet) {
+    frequencies_ = probabilities_;
+    pooled_.assign(responses_.size(), 0);
+    for (std::size_t s = 0; s < weights_.size() && s < probabilities_.size(); ++s) {
+        for (std::size_t i = 0; i < pooled_.size() && i < probabilities_[s].size(); ++i) {
+            pooled_[i] += weights_[s] * probabilities_[s][i];
+        }
+    }
     if (probabilities_.size() != weights_.size()) throw internal_error("response_model: a weight per condition");
     for (const auto& p: probabilities_) {
         if (p.size() != responses_.size()) throw internal_error("response_model: a probability per response");
@@ -174,8 +223,8 @@ std::map<info_estimator, std::vector<double>> surrogate_values(const response_mo
                                                                unsigned scale, unsigned surrogates,
                                                                const std::vector<info_estimator>& which,
                                                                const info_settings& settings) {
-    std::vector<std::size_t> trials = per_condition;
-    for (auto& n: trials) n *= scale;
+    std::vector<std::size_t> trials = per_condition;  // scale 0: the first model's, at the record's trials
+    for (auto& n: trials) n *= std::max(1u, scale);
     std::map<info_estimator, std::vector<double>> values;
     for (unsigned k = 0; k < surrogates; ++k) {
         const labelled_responses data = model.draw(trials, derive_seed(settings.seed, {surrogate_draw_tag, scale, k}));
@@ -204,11 +253,22 @@ stiminfo_calibration calibrate_stiminfo(const labelled_responses& t, const std::
     stiminfo_calibration cal;
     cal.surrogates = q.surrogates;
     cal.smoothing = q.smoothing;
-    const response_model model(t, q.smoothing);
-    cal.shrinkage = model.shrinkage();
-    cal.model_bits = model.information();
     std::vector<std::size_t> per_condition(t.conditions, 0);
     for (std::uint32_t c: t.condition) ++per_condition[c];
+    response_model model(t, q.smoothing);
+    cal.first_model_bits = model.information();
+    if (q.smoothing == response_smoothing::variance_matched) {
+        // The shape of the model is right but its size is not (the factor matches a divergence, not
+        // the information, and errs both ways: notes/methods-calibration.md). Its size is set to the
+        // plug-in information less the plug-in's bias at this first model, measured on surrogates
+        // (a bootstrap bias correction: Efron & Tibshirani 1993, ch. 10), so that data drawn from the
+        // model show the record's plug-in information on average.
+        const auto plugin = surrogate_values(model, per_condition, 0, q.surrogates, {info_estimator::plugin}, settings);
+        cal.first_plugin_bias = mean_of(plugin.at(info_estimator::plugin)) - cal.first_model_bits;
+        model = model.matched_to(stimulus_information(t, info_estimator::plugin, settings) - cal.first_plugin_bias);
+    }
+    cal.shrinkage = model.shrinkage();
+    cal.model_bits = model.information();
     std::vector<info_estimator> which;
     for (const auto& [e, v]: estimates) which.push_back(e);
 

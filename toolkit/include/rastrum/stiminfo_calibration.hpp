@@ -50,6 +50,11 @@ public:
     /// drawn from the model by a stream seeded with `seed`; the record's alphabet.
     labelled_responses draw(const std::vector<std::size_t>& trials_per_condition, std::uint64_t seed) const;
 
+    /// The same model with each condition's factor moved along k_s = min(1, lambda k_s / max k) so
+    /// that its information is `target_bits` (0 for a target <= 0; the raw frequencies when the
+    /// target is beyond theirs).
+    response_model matched_to(double target_bits) const;
+
     /// The factor k_s of each condition (1 for given or raw models, 0 when the data show no spread
     /// beyond noise: then every condition is the pooled distribution and the information is 0).
     const std::vector<double>& shrinkage() const { return shrinkage_; }
@@ -57,7 +62,10 @@ public:
     const std::vector<word_code>& responses() const { return responses_; }
 
 private:
+    void set_shrinkage(const std::vector<double>& k);
     std::vector<word_code> responses_;
+    std::vector<std::vector<double>> frequencies_;  // per condition (the pooled ones where it has no trials)
+    std::vector<double> pooled_;
     std::vector<std::vector<double>> probabilities_;
     std::vector<double> weights_;
     std::vector<double> shrinkage_;
@@ -86,6 +94,8 @@ struct stiminfo_calibration {
     unsigned surrogates = 0;
     response_smoothing smoothing = response_smoothing::variance_matched;
     std::vector<double> shrinkage;          // k_s per condition
+    double first_model_bits = 0;            // the variance-matched model's information, before its size is set
+    double first_plugin_bias = 0;           // the plug-in's bias at that first model (surrogates)
     double model_bits = 0;                  // the model's exact information
     std::map<info_estimator, estimator_calibration> by_estimator;
     info_estimator recommended = info_estimator::plugin;  // lowest rmse at the model

@@ -57,8 +57,10 @@ json calibration_json(const stiminfo_record& r) {
                          {"bias_bits", z.bias}, {"spread_bits", z.spread}, {"error_bits", z.error}});
     }
     return {{"surrogates", c.surrogates},
-            {"model", c.smoothing == response_smoothing::variance_matched ? "variance-matched" : "raw frequencies"},
+            {"model", c.smoothing == response_smoothing::variance_matched ? "shrunk toward the pooled responses, sized by the plug-in bias" : "raw frequencies"},
             {"shrinkage", c.shrinkage},
+            {"first_model_bits", c.first_model_bits},
+            {"first_plugin_bias_bits", c.first_plugin_bias},
             {"model_bits", c.model_bits},
             {"recommended_estimator", info_estimator_name(c.recommended)},
             {"value_bits", c.value},
