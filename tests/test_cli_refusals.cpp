@@ -138,6 +138,7 @@ TEST(messages, option_checks_name_the_option_and_its_value) {
         {"stiminfo " + file + " --code word --window-ms 0:500 --bin-ms 0", {2, "--bin-ms: expected one positive width in ms, got '0'"}},
         {"direct " + file + " --bin-ms 2 --letters 1-2 --bias-tolerance 7.3", {2, "--bias-tolerance must lie in (0, 1], got 7.3"}},
         {"direct " + file + " --bin-ms 2 --letters 1-2 --surrogates 1", {2, "--surrogates: 0 (no calibration) or at least 2, got 1"}},
+        {"stiminfo " + file + " --code count --window-ms 0:500 --surrogates 1", {2, "--surrogates: 0 (no calibration) or at least 2, got 1"}},
         {"direct " + file + " --bin-ms 2 --letters 1-2 --surrogates 5 --error-tolerance 0", {2, "--error-tolerance must lie in (0, 1], got 0"}},
         {"direct " + file + " --bin-ms 2 --letters 1-2 --surrogates 5 --surrogate-splits 1", {2, "--surrogate-splits: expected"}},
         // 500 ms hold 68 bins of 7.3 ms: the width as typed, not 7.300.

@@ -10,7 +10,7 @@ direct records whose fit range uses words longer than one letter, and the nulls'
 at 0.05 on the designs without information. Usage:
 
     coverage.py PATH_TO_rastrum [--seeds N] [--designs a,b] [--jobs J] [--quick] [--out table.md]
-                [--direct-args "--surrogates 20"]
+                [--direct-args "--surrogates 20"] [--stiminfo-args "--surrogates 50"] [--records-out FILE]
 
 Seeds are 1..N for every design (synth --seed s and the analysis's --seed s), so a run is repeatable.
 Exact answers come from the answers file `rastrum synth` writes beside each recording (computed by
@@ -165,7 +165,7 @@ def run(rastrum, args):
     return done.stdout
 
 
-def one_seed(rastrum, design, seed, quick, folder, direct_args=()):
+def one_seed(rastrum, design, seed, quick, folder, direct_args=(), stiminfo_args=()):
     """Synthesises one recording, analyses it, returns its measurements: a list of observations
     (quantity, estimate, interval or None, truth, unit) and the record's cautions, fit and p-value."""
     path = os.path.join(folder, f"{slug(design['name'])}-{seed}.h5")
@@ -176,8 +176,7 @@ def one_seed(rastrum, design, seed, quick, folder, direct_args=()):
         answers = json.load(f)
     units = need(answers, "units", answers_path)
     extra = ["--null-shuffles", "40", "--bootstrap", "40"] if quick and design["tool"] == "stiminfo" else []
-    if design["tool"] == "direct":
-        extra = extra + list(direct_args)
+    extra = extra + list(direct_args if design["tool"] == "direct" else stiminfo_args)
     out = json.loads(run(rastrum, [design["tool"], path] + design["analysis"] + extra + ["--seed", str(seed)] +
                          (DIRECT if design["tool"] == "direct" else STIMINFO)))
     os.remove(path)
@@ -193,11 +192,31 @@ def one_seed(rastrum, design, seed, quick, folder, direct_args=()):
             results.append(direct_observations(r, truth))
         elif r.get("population"):
             results.append(population_observations(r, synth))
+            results[-1]["raw"] = calibration_raw(r, results[-1]["observations"][0][3], design, seed)
         else:
             index = int(unit[1:]) - 1
             truth = need(units[index], design["truth_key"], answers_path)
             results.append(stiminfo_observations(r, truth, f"{unit} " if design.get("population") else ""))
+            results[-1]["raw"] = calibration_raw(r, truth, design, seed)
     return results
+
+
+def calibration_raw(r, truth, design, seed):
+    """What --records-out keeps of a stiminfo record: enough to judge other caution thresholds later."""
+    c = r.get("calibration")
+    return {"design": design["name"], "seed": seed, "unit": r["unit"], "truth": truth,
+            "info_bits": r["info_bits"], "envelope": r["info_ci95_bits"], "warnings": r["warnings"],
+            "calibration": None if c is None else {k: c[k] for k in (
+                "recommended_estimator", "value_bits", "error_bits", "ci95_bits", "tolerance_bits", "uncertain",
+                "model_bits", "shrinkage", "trials_per_condition_needed", "by_estimator", "by_trials")}}
+
+
+def calibrated_observation(r, truth, name):
+    """The calibrated value and its interval (stiminfo --surrogates N), or None when calibration is off."""
+    value = need(r, "info_calibrated_bits", "stiminfo record")
+    if value is None:
+        return None
+    return (name, value, tuple(need(r, "info_calibrated_ci95_bits", "stiminfo record")), truth, "bits")
 
 
 def direct_observations(r, truth):
@@ -219,6 +238,9 @@ def stiminfo_observations(r, truth, prefix=""):
     obs = [(f"{prefix}info, {name}", value, tuple(interval) if name == interval_estimator else None, truth, "bits")
            for name, value in values.items()]
     obs.sort(key=lambda o: o[2] is None)  # the interval's estimator first: it decides the record's error
+    calibrated = calibrated_observation(r, truth, f"{prefix}info, calibrated")
+    if calibrated:  # the calibrated value is the record's headline, and so decides its error
+        obs.insert(0, calibrated)
     subtracted = need(r, "info_null_subtracted_bits", "stiminfo record")
     if subtracted is not None:
         obs.append((f"{prefix}info, null-subtracted plug-in", subtracted, None, truth, "bits"))
@@ -237,6 +259,9 @@ def population_observations(r, synth_args):
     intervals = need(p, "ci95_bits", "population record")
     obs = [(f"pair {name}", need(p, f"{name}_bits", "population record"),
             tuple(need(intervals, name, "population intervals")), truth, "bits") for name, truth in truths.items()]
+    calibrated = calibrated_observation(r, joint, "pair joint, calibrated")
+    if calibrated:
+        obs.insert(0, calibrated)
     return {"observations": obs, "cautions": need(r, "warnings", "population record"), "longer_words": None,
             "p_value": None}
 
@@ -343,6 +368,9 @@ def main():
     ap.add_argument("--out", help="also write the table (Markdown) here")
     ap.add_argument("--direct-args", default="",
                     help="options added to every direct analysis, e.g. '--surrogates 20' (the calibration)")
+    ap.add_argument("--stiminfo-args", default="",
+                    help="options added to every stiminfo analysis, e.g. '--surrogates 50' (the calibration)")
+    ap.add_argument("--records-out", help="also write each stiminfo record's values and calibration here (JSON lines)")
     a = ap.parse_args()
     seeds = min(a.seeds, 3) if a.quick else a.seeds
     wanted = {slug(x) for x in a.designs.split(",") if x}
@@ -360,14 +388,19 @@ def main():
     summaries = []
     with tempfile.TemporaryDirectory() as folder, concurrent.futures.ThreadPoolExecutor(a.jobs) as pool:
         for d in designs:
-            futures = [pool.submit(one_seed, a.rastrum, d, s, a.quick, folder, shlex.split(a.direct_args))
-                       for s in range(1, seeds + 1)]
+            futures = [pool.submit(one_seed, a.rastrum, d, s, a.quick, folder, shlex.split(a.direct_args),
+                                   shlex.split(a.stiminfo_args)) for s in range(1, seeds + 1)]
             try:
                 results = [r for f in futures for r in f.result()]
             except Broken as e:
                 print(f"coverage.py: broken instrument: {e}", file=sys.stderr)
                 return 1
             summaries.append(summarise(d, results))
+            if a.records_out:
+                with open(a.records_out, "a") as f:
+                    for r in results:
+                        if r.get("raw"):
+                            f.write(json.dumps(r["raw"]) + "\n")
             print(f"{d['name']}: {len(results)} records", file=sys.stderr, flush=True)
     text = table(summaries, command.strip())
     print(text)

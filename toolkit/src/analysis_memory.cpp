@@ -176,6 +176,9 @@ std::size_t check_stiminfo_memory(const recording& rec, const stiminfo_request& 
         // The values of the label-shuffle null and of the bootstrap (a population keeps five per resample).
         const double resamples = 8.0 * (q.null_shuffles + q.bootstrap) + (g.size() > 1 ? 40.0 * q.bootstrap : 0);
         double responses = per_letter * letters * trials + per_trial_response * trials * (members + 1);
+        // The calibration (stiminfo_calibration.cpp) holds one surrogate at a time, of up to 4x the
+        // trials, and 8 bytes per surrogate and estimator.
+        if (q.surrogates > 0) responses += per_trial_response * 4 * trials + 8.0 * 3 * q.surrogates * info_estimator_count;
         for (const std::size_t u: g) responses += per_spike_held * static_cast<double>(rec.spike_count(u)) + per_trial_held * trials;
         if (resamples + responses <= task) continue;
         task = resamples + responses;

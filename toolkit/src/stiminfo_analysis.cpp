@@ -39,6 +39,7 @@ void check_stiminfo_request(const stiminfo_request& q) {
     }
     if (q.estimators.empty()) throw usage_error("--estimators: name at least one");
     if (q.settings.splits < 1) throw usage_error("--splits must be at least 1");
+    if (q.surrogates == 1) throw usage_error("--surrogates: 0 (no calibration) or at least 2, got 1");
 }
 
 namespace {
@@ -218,6 +219,12 @@ void trial_fraction_curve(const labelled_responses& t, const stiminfo_request& q
     }
 }
 
+calibration_request calibration_request_of(const stiminfo_request& q) {
+    calibration_request c;
+    c.surrogates = c.scaled_surrogates = q.surrogates;
+    return c;
+}
+
 /// "a", "b" and "c" as "'a', 'b', 'c'", sorted, for messages.
 std::string sorted_labels(std::vector<std::string> labels) {
     std::sort(labels.begin(), labels.end());
@@ -382,6 +389,7 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
             }
         }
         for (info_estimator e: q.estimators) r.info_bits[e] = stimulus_information(t, e, settings);
+        if (q.surrogates > 0) r.calibration = calibrate_stiminfo(t, r.info_bits, settings, calibration_request_of(q));
         trial_fraction_curve(t, q, settings, r);
 
         // Label-shuffle null of the plug-in value: its mean is the plug-in bias under no information.
@@ -439,7 +447,9 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
 
         const std::size_t fewest = *std::min_element(per_condition.begin(), per_condition.end());
         r.few_trials = fewest < r.distinct_responses;
-        if (r.few_trials) {
+        // Calibrated, the few-trials and disagreement cautions give way to the measured error ("uncertain").
+        if (r.calibration && r.calibration->uncertain) r.warnings.push_back(uncertain_caution(*r.calibration));
+        if (r.few_trials && !r.calibration) {
             const auto c = static_cast<std::size_t>(std::min_element(per_condition.begin(), per_condition.end()) - per_condition.begin());
             const bool all_equal = std::all_of(per_condition.begin(), per_condition.end(), [&](std::size_t n) { return n == fewest; });
             r.warnings.push_back("few trials for this code: " + std::to_string(r.distinct_responses) + " distinct responses, but " +
@@ -458,19 +468,21 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
             }
         }
         const auto nsb = r.info_bits.find(info_estimator::nsb);
-        if (nsb != r.info_bits.end() && nsb->second < -0.02) {
+        if (nsb != r.info_bits.end() && nsb->second < -0.02 &&
+            (!r.calibration || r.calibration->recommended == info_estimator::nsb)) {
             r.warnings.push_back("nsb is " + format_fixed(nsb->second, 3) +
                                  " bits, below zero: its prior does not suit these responses; read the other estimators");
         }
         const double spread = spread_of_corrected(r.info_bits);
-        if (!r.few_trials && spread > 0.1) {
+        if (!r.few_trials && spread > 0.1 && !r.calibration) {
             r.warnings.push_back("the bias-corrected estimators disagree by " + format_fixed(spread, 3) +
                                  " bits; the interval spans them");
         }
         if (q.null_shuffles > 0 && r.null_p_value > 0.05) {
             r.warnings.push_back("not significant against shuffled labels (p = " + format_fixed(r.null_p_value, 3) + ")");
         }
-        if (q.null_shuffles > 0 && q.bootstrap > 1 && (r.null_p_value <= 0.05) != (r.interval.first > 0)) {
+        const double low = r.calibration ? r.calibration->interval.first : r.interval.first;  // the headline interval's
+        if (q.null_shuffles > 0 && (q.bootstrap > 1 || r.calibration) && (r.null_p_value <= 0.05) != (low > 0)) {
             r.warnings.push_back(r.null_p_value <= 0.05
                                      ? "significant against shuffled labels, but the interval reaches 0: the amount is uncertain"
                                      : "the interval excludes 0, but the shuffle test does not reject 0: treat as not shown");

@@ -26,7 +26,8 @@ void add_time_course(const std::vector<stiminfo_record>& records, const stiminfo
         curve_series c = labelled(first, "info_vs_time", info_estimator_name(e));
         c.x = time;
         c.y = {"information", "bits", {}};
-        const bool banded = e == q.interval_estimator && q.bootstrap > 1;
+        // Calibrated, the band is the calibrated value's (its own series, below), not the envelope.
+        const bool banded = e == q.interval_estimator && q.bootstrap > 1 && q.surrogates == 0;
         for (const stiminfo_record* r: windows) {
             c.x.values.push_back(500 * (r->window.first + r->window.second));
             c.y.values.push_back(r->info_bits.at(e));
@@ -34,6 +35,18 @@ void add_time_course(const std::vector<stiminfo_record>& records, const stiminfo
                 c.y_low.push_back(r->interval.first);
                 c.y_high.push_back(r->interval.second);
             }
+        }
+        out.push_back(std::move(c));
+    }
+    if (q.surrogates > 0) {
+        curve_series c = labelled(first, "info_vs_time", "calibrated");
+        c.x = time;
+        c.y = {"information", "bits", {}};
+        for (const stiminfo_record* r: windows) {
+            c.x.values.push_back(500 * (r->window.first + r->window.second));
+            c.y.values.push_back(r->calibration->value);
+            c.y_low.push_back(r->calibration->interval.first);
+            c.y_high.push_back(r->calibration->interval.second);
         }
         out.push_back(std::move(c));
     }

@@ -6,6 +6,7 @@
 #include <rastrum/population.hpp>
 #include <rastrum/recording.hpp>
 #include <rastrum/responses.hpp>
+#include <rastrum/stiminfo_calibration.hpp>
 #include <rastrum/stimulus_information.hpp>
 
 #include <cstdint>
@@ -30,6 +31,9 @@ struct stiminfo_request {
     unsigned null_shuffles = 200;
     unsigned bootstrap = 200;
     info_estimator interval_estimator = info_estimator::jackknife;
+    /// Calibration at the record's own sample size (stiminfo_calibration.hpp): N surrogate data sets
+    /// (0: off; else at least 2), and as many at 2x and 4x the trials for the trials needed.
+    unsigned surrogates = 0;
     unsigned trial_fraction_repeats = 4;  // draws per fraction of the trials; 0: no trial-fraction curve
     info_settings settings;
     unsigned threads = 1;
@@ -71,6 +75,9 @@ struct stiminfo_record {
     std::vector<double> trial_fractions;
     std::map<info_estimator, std::vector<double>> info_by_fraction;
     std::optional<population_record> population;
+    /// Present when request.surrogates > 0: the calibrated value and interval (the record's headline
+    /// then; `interval` keeps the envelope).
+    std::optional<stiminfo_calibration> calibration;
     std::vector<std::string> warnings;
 };
 

@@ -52,7 +52,11 @@ std::optional<figure> time_course(const result_document& doc, const std::string&
     chart.title = unit + ": information about the condition over time";
     chart.panels = {p};
     const std::string band =
-        interval_estimator.empty() ? "" : "; the coloured band is the 95% interval reported with " + interval_estimator;
+        interval_estimator.empty() ? ""
+        : interval_estimator == "calibrated"
+            ? "; calibrated is the estimator of lowest error at each window's own sample size less its measured bias, "
+              "with its 95% interval as the coloured band"
+            : "; the coloured band is the 95% interval reported with " + interval_estimator;
     const std::string caption =
         "Information about which condition was shown in each sliding window (x: the window's centre), by each estimator" +
         band +

@@ -1,4 +1,5 @@
 #include <rastrum/csv.hpp>
+#include <rastrum/format.hpp>
 #include <rastrum/stiminfo_results.hpp>
 
 #include <algorithm>
@@ -42,6 +43,37 @@ json population_json(const stiminfo_record& r, const stiminfo_request& q) {
               {"shuffle_corrected", pair(p.low.shuffle_corrected, p.high.shuffle_corrected)}}}};
 }
 
+json calibration_json(const stiminfo_record& r) {
+    if (!r.calibration) return nullptr;
+    const stiminfo_calibration& c = *r.calibration;
+    json by = json::object();
+    for (const auto& [e, v]: c.by_estimator) {
+        by[info_estimator_name(e)] = {{"estimate_bits", v.estimate}, {"bias_bits", v.bias}, {"spread_bits", v.spread},
+                                      {"rmse_bits", v.rmse}, {"error_bits", v.error}, {"corrected_bits", v.estimate - v.bias}};
+    }
+    json sizes = json::array();
+    for (const auto& z: c.by_size) {
+        sizes.push_back({{"scale", z.scale}, {"trials_per_condition", z.trials_per_condition}, {"surrogates", z.surrogates},
+                         {"bias_bits", z.bias}, {"spread_bits", z.spread}, {"error_bits", z.error}});
+    }
+    return {{"surrogates", c.surrogates},
+            {"model", c.smoothing == response_smoothing::variance_matched ? "shrunk toward the pooled responses, sized by the plug-in bias" : "raw frequencies"},
+            {"shrinkage", c.shrinkage},
+            {"first_model_bits", c.first_model_bits},
+            {"first_plugin_bias_bits", c.first_plugin_bias},
+            {"model_bits", c.model_bits},
+            {"recommended_estimator", info_estimator_name(c.recommended)},
+            {"value_bits", c.value},
+            {"error_bits", c.error},
+            {"t_quantile", c.t_quantile},
+            {"ci95_bits", {c.interval.first, c.interval.second}},
+            {"tolerance_bits", c.tolerance},
+            {"uncertain", c.uncertain},
+            {"trials_per_condition_needed", c.trials_per_condition_needed ? json(*c.trials_per_condition_needed) : json(nullptr)},
+            {"by_trials", sizes},
+            {"by_estimator", by}};
+}
+
 }  // namespace
 
 nlohmann::ordered_json stiminfo_parameters_json(const stiminfo_request& q) {
@@ -64,6 +96,7 @@ nlohmann::ordered_json stiminfo_parameters_json(const stiminfo_request& q) {
             {"bootstrap", q.bootstrap},
             {"interval_estimator", info_estimator_name(q.interval_estimator)},
             {"splits", q.settings.splits},
+            {"surrogates", q.surrogates},
             {"seed", q.settings.seed},
             {"threads", q.threads}};
 }
@@ -102,6 +135,11 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
                                                          "plug-in value, widened by 1.96 bootstrap standard deviations of " +
                                                          std::string(info_estimator_name(q.interval_estimator)))
                                                   : json(nullptr)},
+             {"info_calibrated_bits", r.calibration ? json(r.calibration->value) : json(nullptr)},
+             {"info_calibrated_ci95_bits", r.calibration ? json{r.calibration->interval.first, r.calibration->interval.second}
+                                                         : json(nullptr)},
+             {"info_calibrated_estimator", r.calibration ? json(info_estimator_name(r.calibration->recommended)) : json(nullptr)},
+             {"calibration", calibration_json(r)},
              {"few_trials", r.few_trials},
              {"mean_spikes", r.mean_spikes},
              {"bits_per_spike", per_estimator(r, r.mean_spikes)},
@@ -116,7 +154,9 @@ std::string stiminfo_csv(const std::vector<stiminfo_record>& records, const stim
     // Record-level columns (unit ... info_ci95_*, population_*) repeat on each estimator's row: tidy form.
     s << "unit,window_start_ms,window_stop_ms,code,bin_ms,trials,stimuli,stimulus_entropy_bits,response_alphabet,"
          "distinct_responses,estimator,info_bits,bits_per_spike,null_mean_bits,null_p_value,info_null_subtracted_bits,"
-         "info_ci95_low_bits,info_ci95_high_bits,info_ci95_bootstrap_estimator,few_trials";
+         "info_ci95_low_bits,info_ci95_high_bits,info_ci95_bootstrap_estimator,few_trials,"
+         "estimator_bias_bits,estimator_spread_bits,estimator_corrected_bits,calibrated_info_bits,"
+         "calibrated_ci95_low_bits,calibrated_ci95_high_bits,recommended_estimator,uncertain,trials_per_condition_needed";
     for (const char* v: {"joint", "sum_single", "synergy", "independent", "shuffle_corrected"}) {
         s << ",population_" << v << "_bits,population_" << v << "_ci95_low_bits,population_" << v << "_ci95_high_bits";
     }
@@ -135,7 +175,18 @@ std::string stiminfo_csv(const std::vector<stiminfo_record>& records, const stim
                        << maybe(p && intervals, p ? r.population->high.*field : 0);
         }
         population << ',' << (r.population ? info_estimator_name(q.population_estimator) : "");
+        const stiminfo_calibration* c = r.calibration ? &*r.calibration : nullptr;
+        std::ostringstream calibrated;  // the record's calibration, after each row's estimator's own
+        if (c) {
+            calibrated << ',' << csv_number(c->value) << ',' << csv_number(c->interval.first) << ','
+                       << csv_number(c->interval.second) << ',' << info_estimator_name(c->recommended) << ','
+                       << (c->uncertain ? "true" : "false") << ','
+                       << (c->trials_per_condition_needed ? csv_number(*c->trials_per_condition_needed) : "");
+        } else {
+            calibrated << ",,,,,,";
+        }
         for (const auto& [e, v]: r.info_bits) {
+            const estimator_calibration* ec = c ? &c->by_estimator.at(e) : nullptr;
             s << csv_text(r.unit) << ',' << csv_number(r.window.first * 1000) << ',' << csv_number(r.window.second * 1000)
               << ',' << response_code_name(q.response.code) << ','
               << (q.response.code == response_code::spike_count ? "" : csv_number(q.response.bin_width * 1000)) << ','
@@ -145,7 +196,9 @@ std::string stiminfo_csv(const std::vector<stiminfo_record>& records, const stim
               << maybe(nulls, r.null_mean_bits) << ',' << maybe(nulls, r.null_p_value) << ','
               << maybe(nulls, r.null_subtracted_bits) << ',' << maybe(intervals, r.interval.first) << ','
               << maybe(intervals, r.interval.second) << ',' << (intervals ? info_estimator_name(q.interval_estimator) : "")
-              << ',' << (r.few_trials ? "true" : "false") << population.str() << ',' << csv_text(warnings) << '\n';
+              << ',' << (r.few_trials ? "true" : "false") << ',' << maybe(ec, ec ? ec->bias : 0) << ','
+              << maybe(ec, ec ? ec->spread : 0) << ',' << maybe(ec, ec ? ec->estimate - ec->bias : 0) << calibrated.str()
+              << population.str() << ',' << csv_text(warnings) << '\n';
         }
     }
     return s.str();
@@ -176,7 +229,13 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
                       records[0].trials_per_stimulus.size(), records[0].stimulus_entropy_bits);
         s << line;
     }
-    if (intervals) {
+    const bool calibrated = q.surrogates > 0;
+    if (calibrated) {
+        s << "calibrated: the value of the estimator of lowest error (named), less its bias, both measured on " << q.surrogates
+          << " surrogate\ndata sets drawn from a model fitted to each record; 95% interval: +-t calibrated errors;\n"
+             "trials needed: per condition, for an error within max(10% of the value, 0.02 bits), from surrogates\n"
+             "with 2x and 4x the trials (the envelope interval of the estimators is in the JSON and CSV)\n";
+    } else if (intervals) {
         s << "95% interval: from the lowest to the highest bias-corrected estimate" << (nulls ? " (null-subtracted included)" : "")
           << ",\nwidened by 1.96 bootstrap standard deviations of " << info_estimator_name(q.interval_estimator) << " ("
           << q.bootstrap << " resamples within condition)\n";
@@ -190,7 +249,12 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
         std::snprintf(line, sizeof line, " %*s", widths.back(), info_estimator_name(e));
         s << line;
     }
-    std::snprintf(line, sizeof line, " %10s  %-16s %10s\n", "null-sub", "95% interval", "p(shuffle)");
+    if (calibrated) {
+        std::snprintf(line, sizeof line, " %10s %10s %11s  %-16s %-23s %s\n", "null-sub", "p(shuffle)", "calibrated",
+                      "95% interval", "estimator", "trials needed");
+    } else {
+        std::snprintf(line, sizeof line, " %10s  %-16s %10s\n", "null-sub", "95% interval", "p(shuffle)");
+    }
     s << line;
     for (const auto& r: records) {
         std::snprintf(line, sizeof line, "%*s %5g-%-5g", static_cast<int>(unit_width), r.unit.c_str(), r.window.first * 1000,
@@ -205,9 +269,20 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
             std::snprintf(p_value, sizeof p_value, "%.3f", r.null_p_value);
             std::snprintf(subtracted, sizeof subtracted, "%.4f", r.null_subtracted_bits);
         }
-        std::snprintf(line, sizeof line, " %10s  %-16s %10s%s\n", subtracted,
-                      interval_text(intervals, r.interval.first, r.interval.second).c_str(), p_value,
-                      r.warnings.empty() ? "" : "  (!)");
+        if (r.calibration) {
+            const auto& c = *r.calibration;
+            const std::string needed =
+                c.trials_per_condition_needed
+                    ? format_number(std::ceil(*c.trials_per_condition_needed))
+                    : "more than " + format_number(std::ceil(4 * c.by_size.front().trials_per_condition));
+            std::snprintf(line, sizeof line, " %10s %10s %11.4f  %-16s %-23s %s%s\n", subtracted, p_value, c.value,
+                          interval_text(true, c.interval.first, c.interval.second).c_str(),
+                          info_estimator_name(c.recommended), needed.c_str(), r.warnings.empty() ? "" : "  (!)");
+        } else {
+            std::snprintf(line, sizeof line, " %10s  %-16s %10s%s\n", subtracted,
+                          interval_text(intervals, r.interval.first, r.interval.second).c_str(), p_value,
+                          r.warnings.empty() ? "" : "  (!)");
+        }
         s << line;
     }
     bool populations = false;

@@ -1,0 +1,66 @@
+// End-to-end: `rastrum stiminfo --surrogates N` (notes/methods-calibration.md, "Stimulus information"):
+// the calibration's keys in the JSON and columns in the CSV, the table's words, and that the numbers
+// the record reports follow from each other as documented.
+#include "cli_runner.hpp"
+
+#include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
+
+#include <cmath>
+
+using namespace rastrum::testing;
+using nlohmann::json;
+
+TEST(cli, stiminfo_calibration_reports_its_estimator_interval_and_trials_needed) {
+    const std::string folder = fresh_folder("cli-stiminfo-calibration");
+    const std::string rec = folder + "/c.h5";
+    ASSERT_EQ(run_rastrum("synth conditions --out " + rec + " --duration-s 0.5 --means 2,4,6,9 --means 1,1,2,2").exit_code, 0);
+    EXPECT_NE(run_rastrum("stiminfo --help").out.find("--surrogates"), std::string::npos);
+    const auto r = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --surrogates 10 --null-shuffles 20 "
+                               "--bootstrap 20 --population u1,u2 --json " + folder + "/s.json --csv " + folder + "/s.csv");
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    for (const char* words: {"calibrated", "95% interval", "estimator", "trials needed"}) {
+        EXPECT_NE(r.out.find(words), std::string::npos) << words;
+    }
+    const json d = json::parse(read_file(folder + "/s.json"));
+    EXPECT_EQ(d["parameters"]["surrogates"], 10);
+    ASSERT_EQ(d["records"].size(), 3u);  // u1, u2 and the pair, whose joint responses are calibrated
+    for (const json& rec0: d["records"]) {
+        const json& cal = rec0["calibration"];
+        ASSERT_TRUE(cal.is_object());
+        EXPECT_EQ(cal["surrogates"], 10);
+        const std::string chosen = cal["recommended_estimator"];
+        EXPECT_EQ(rec0["info_calibrated_estimator"], chosen);
+        const json& by = cal["by_estimator"][chosen];
+        // The calibrated value is the recommended estimator's estimate less its bias, +- t errors,
+        // t = 2.262 at 9 degrees of freedom (Fisher & Yates, Statistical Tables, table III).
+        const double value = rec0["info_calibrated_bits"];
+        EXPECT_NEAR(value, by["estimate_bits"].get<double>() - by["bias_bits"].get<double>(), 1e-12);
+        EXPECT_NEAR(by["estimate_bits"].get<double>(), rec0["info_bits"][chosen].get<double>(), 1e-12);
+        EXPECT_NEAR(cal["t_quantile"].get<double>(), 2.2622, 1e-4);
+        const double e = cal["error_bits"];
+        EXPECT_NEAR(rec0["info_calibrated_ci95_bits"][0].get<double>(), value - 2.2622 * e, 1e-3 * e + 1e-12);
+        EXPECT_NEAR(rec0["info_calibrated_ci95_bits"][1].get<double>(), value + 2.2622 * e, 1e-3 * e + 1e-12);
+        // The recommended estimator has the lowest RMSE at the model.
+        for (const auto& [name, v]: cal["by_estimator"].items()) {
+            EXPECT_GE(v["rmse_bits"].get<double>(), by["rmse_bits"].get<double>()) << name;
+        }
+        ASSERT_EQ(cal["by_trials"].size(), 3u);
+        EXPECT_EQ(cal["by_trials"][2]["scale"], 4.0);
+        EXPECT_EQ(cal["uncertain"].get<bool>(), e > cal["tolerance_bits"].get<double>());
+        // The envelope interval stays beside it.
+        EXPECT_EQ(rec0["info_ci95_bits"].size(), 2u);
+    }
+    const std::string csv = read_file(folder + "/s.csv");
+    for (const char* column: {"calibrated_info_bits", "calibrated_ci95_low_bits", "recommended_estimator",
+                              "estimator_bias_bits", "trials_per_condition_needed"}) {
+        EXPECT_NE(csv.find(column), std::string::npos) << column;
+    }
+    // Off: no calibration, the keys present and null.
+    const auto off = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --surrogates 0 --null-shuffles 0 "
+                                 "--bootstrap 0 --quiet --json -");
+    ASSERT_EQ(off.exit_code, 0) << off.err;
+    const json plain = json::parse(off.out);
+    EXPECT_TRUE(plain["records"][0]["calibration"].is_null());
+    EXPECT_TRUE(plain["records"][0]["info_calibrated_bits"].is_null());
+}
