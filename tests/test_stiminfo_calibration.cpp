@@ -171,9 +171,9 @@ TEST(response_model, draws_follow_the_model) {
 
 // Student's t quantiles from the standard table (Fisher & Yates, Statistical Tables, table III;
 // common practice): t_0.975 = 2.262 at 9 degrees of freedom, 2.010 at 49.
-TEST(stiminfo_calibration, student_t_quantiles) {
-    EXPECT_NEAR(student_t_975(9), 2.2622, 1e-4);
-    EXPECT_NEAR(student_t_975(49), 2.0096, 1e-4);
+TEST(stiminfo_calibration, the_interval_factor_is_students_t_for_10_and_50_surrogates) {
+    EXPECT_NEAR(calibrated_interval_factor(10), 2.2622, 1e-4);
+    EXPECT_NEAR(calibrated_interval_factor(50), 2.0096, 1e-4);
 }
 
 // e(n) = 1 / sqrt(n) (analytic) falls to 0.05 at n = 400; not within 4 x 50 = 200; an error that

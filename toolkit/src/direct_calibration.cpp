@@ -269,6 +269,9 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
             rates.push_back(info_rate_of(sur_info[m][k], settings.letters_min, chosen.fit, bin_width));
         }
         estimator_calibration& c = cal.by_estimator[m];
+        std::vector<double> record_info;
+        for (const letters_estimate& e: record.computed()) record_info.push_back(e.info_bits_by_estimator[m]);
+        c.estimate = info_rate_of(record_info, settings.letters_min, chosen.fit, bin_width);
         c.bias = mean_of(rates) - chosen.model_rate;
         c.spread = sd_of(rates);
         c.rmse = std::hypot(c.bias, c.spread);

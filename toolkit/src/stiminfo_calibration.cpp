@@ -6,8 +6,6 @@
 #include <rastrum/random.hpp>
 #include <rastrum/stiminfo_calibration.hpp>
 
-#include <boost/math/distributions/students_t.hpp>
-
 #include <algorithm>
 #include <cmath>
 #include <numeric>
@@ -190,10 +188,6 @@ std::string uncertain_caution(const stiminfo_calibration& c) {
            "; more trials per condition, a coarser code or a shorter window would help";
 }
 
-double student_t_975(double degrees) {
-    return boost::math::quantile(boost::math::students_t_distribution<double>(degrees), 0.975);
-}
-
 std::optional<double> trials_needed(const std::vector<std::pair<double, double>>& points, double tolerance, double beyond) {
     // log e = log a - b log n by least squares.
     double mx = 0, my = 0;
@@ -290,7 +284,7 @@ stiminfo_calibration calibrate_stiminfo(const labelled_responses& t, const std::
     const estimator_calibration& chosen = cal.by_estimator.at(cal.recommended);
     cal.value = chosen.estimate - chosen.bias;
     cal.error = chosen.error;
-    cal.t_quantile = student_t_975(q.surrogates - 1.0);
+    cal.t_quantile = calibrated_interval_factor(q.surrogates);
     cal.interval = {cal.value - cal.t_quantile * cal.error, cal.value + cal.t_quantile * cal.error};
     cal.tolerance = std::max(q.relative_tolerance * std::abs(cal.value), q.floor_bits);
     cal.uncertain = cal.error > cal.tolerance;

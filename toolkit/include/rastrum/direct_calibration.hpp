@@ -34,12 +34,14 @@ struct calibrated_fit {
     bool within_tolerance = false;
 };
 
-/// One subset estimator's error at the chosen range, measured on the same surrogates.
+/// One estimator measured on a record's surrogates, in the units of its quantity (bits/s for the
+/// direct method's rates, bits for stimulus information).
 struct estimator_calibration {
-    double bias = 0;    // [bits/s] mean surrogate rate - the model's exact rate
-    double spread = 0;  // [bits/s] standard deviation of the surrogate rates
-    double rmse = 0;    // [bits/s] sqrt(bias^2 + spread^2): its error without the bias correction
-    double error = 0;   // [bits/s] calibrated error once corrected by its bias (calibrated_error)
+    double estimate = 0;  // the record's value by this estimator
+    double bias = 0;      // mean over surrogates - the model's exact value
+    double spread = 0;    // standard deviation over surrogates
+    double rmse = 0;      // sqrt(bias^2 + spread^2): its error without the bias correction
+    double error = 0;     // calibrated error of estimate - bias (calibrated_error)
 };
 
 struct rate_calibration {

@@ -8,6 +8,7 @@
 /// this sample size, the estimator of lowest RMSE, its bias-corrected value with an interval that
 /// follows the measured error, and from surrogates with 2x and 4x the trials, how many trials per
 /// condition would bring that error within the tolerance.
+#include <rastrum/direct_calibration.hpp>
 #include <rastrum/stimulus_information.hpp>
 
 #include <cstddef>
@@ -74,13 +75,6 @@ private:
 
 /// One estimator at the model: the record's estimate and the surrogates' error against the model's
 /// exact information.
-struct estimator_calibration {
-    double estimate = 0;  // [bits] the record's value by this estimator
-    double bias = 0;      // [bits] mean over surrogates - model information
-    double spread = 0;    // [bits] standard deviation over surrogates
-    double rmse = 0;      // [bits] sqrt(bias^2 + spread^2)
-    double error = 0;     // [bits] calibrated error of estimate - bias (calibrated_error, direct_calibration.hpp)
-};
 
 /// The recommended estimator's calibrated error at a multiple of the record's trials per condition.
 struct error_at_size {
@@ -135,8 +129,5 @@ std::optional<double> trials_needed(const std::vector<std::pair<double, double>>
 /// The caution of an uncertain record: its error against the tolerance, the trials per condition
 /// that would meet it, and what would help.
 std::string uncertain_caution(const stiminfo_calibration& calibration);
-
-/// The 0.975 quantile of Student's t with `degrees` degrees of freedom (boost::math::students_t).
-double student_t_975(double degrees);
 
 }  // namespace rastrum

@@ -50,7 +50,7 @@ json calibration_json(const direct_estimate& e) {
     for (std::size_t m = 0; m < c.by_estimator.size(); ++m) {
         const estimator_calibration& x = c.by_estimator[m];
         by_estimator[subset_estimator_name(static_cast<subset_estimator>(m))] = {
-            {"bias_bits_per_s", x.bias}, {"spread_bits_per_s", x.spread}, {"rmse_bits_per_s", x.rmse}, {"error_bits_per_s", x.error}};
+            {"info_rate_bits_per_s", x.estimate}, {"bias_bits_per_s", x.bias}, {"spread_bits_per_s", x.spread}, {"rmse_bits_per_s", x.rmse}, {"error_bits_per_s", x.error}};
     }
     json larger = nullptr;
     if (c.uncertain) {
