@@ -262,7 +262,7 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
 
     // Every subset estimator on the same surrogates at the chosen range, for the record (not to
     // choose one: an estimator's error at the fitted model is not its error at the truth; notes/
-    // methods-calibration.md, "Subset estimators").
+    // methods-calibration.md, "Trials needed, and the subset estimators").
     for (std::size_t m = 0; m < sur_info.size(); ++m) {
         std::vector<double> rates;
         for (unsigned k = 0; k < k_count; ++k) {
