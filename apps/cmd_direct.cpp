@@ -28,14 +28,15 @@ int run_direct(int argc, char** argv) {
         ("letters", po::value(&letters_text)->required(), "word lengths A-B in letters (bins), e.g. 1-12; a single A means A-A")
         ("binary", po::bool_switch(&request.binary), "clip letters to 0/1 (spike or no spike) instead of spike counts")
         ("fit-letters", po::value(&fit_text),
-         "word lengths A-B for the extrapolation to infinite word length; by default the upper half of the "
-         "well-sampled lengths (see --bias-tolerance)")
+         "word lengths A-B for the extrapolation to infinite word length; by default the range the calibration "
+         "chooses (see --surrogates), or with --surrogates 0 the upper half of the well-sampled lengths (see "
+         "--bias-tolerance)")
         ("every-length", po::bool_switch(&request.settings.every_length),
          "compute every word length of --letters; by default lengths stop at the first one after which no longer "
          "length can enter the extrapolation to infinite word length (the rates are the same; the curves in 1/L "
          "then show the longer, undersampled lengths too)")
         ("bias-tolerance", number_value(&request.settings.bias_tolerance),
-         "sampling rule: a word length is well sampled when the extrapolations from plug-in and from jackknife "
+         "sampling rule (with --surrogates 0): a word length is well sampled when the extrapolations from plug-in and from jackknife "
          "estimates agree on its information within this fraction of it (or of twice its standard error, if larger)")
         ("subset-estimator", po::value(&subset_text)->default_value(subset_estimator_name(defaults.settings.subsets)),
          "entropy estimator on each subset of trials before the extrapolation to infinite data: plug-in, miller-madow or jackknife")
@@ -49,8 +50,9 @@ int run_direct(int argc, char** argv) {
          "calibrate each estimate at its own sample size on N surrogate data sets drawn from a model fitted to the "
          "record (its firing time course and bin-to-bin dependence, with exactly known answers): the rate is "
          "corrected by the measured bias, its interval follows the measured error, and the word lengths of the "
-         "fit are chosen by that error (longer words whenever within --error-tolerance); 0 turns it off; costs "
-         "about N extra estimates, grown to longer words (notes/methods-calibration.md)")
+         "fit are chosen by that error (longer words whenever within --error-tolerance); at least 2; 0 turns it "
+         "off and gives the plain method with its sampling rule; costs about N extra estimates, grown to longer "
+         "words (notes/methods-calibration.md)")
         ("surrogate-splits", po::value(&surrogate_splits_text)->default_value(surrogate_splits_text),
          "random nested splits of the trials in each surrogate's estimate")
         ("error-tolerance", number_value(&request.settings.error_tolerance),

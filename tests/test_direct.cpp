@@ -109,11 +109,32 @@ TEST(direct, sparse_bins_carry_a_caution_and_dense_ones_none) {
         }
         return false;
     };
-    const auto fine = run_direct(synth.rec, request_for(0.02, 2)).at(0);  // 20 x 10 Hz x 0.02 ms = 0.004
+    auto plain = request_for(0.02, 2);  // 20 x 10 Hz x 0.02 ms = 0.004
+    plain.settings.surrogates = 0;
+    const auto fine = run_direct(synth.rec, plain).at(0);
     EXPECT_TRUE(has_sparse(fine.estimate));
     EXPECT_GT(fine.estimate.info_rate, 10.0) << "the bias the caution is about was not seen";
+    auto coarse_request = request_for(2.0, 4);
+    coarse_request.settings.surrogates = 0;
     const auto coarse = make_frozen_bins(independent_bins({15}, 0.0, 3));  // 150 x 15 Hz x 2 ms = 4.5
-    EXPECT_FALSE(has_sparse(run_direct(coarse.rec, request_for(2.0, 4)).at(0).estimate));
+    EXPECT_FALSE(has_sparse(run_direct(coarse.rec, coarse_request).at(0).estimate));
+}
+
+// The calibration (on by default) measures the sparse-bin bias on its surrogates and removes it: the
+// same homogeneous firing then gets an interval that holds the exact 0 and the caution "uncertain",
+// and the sparse caution, whose bias no longer reaches the number, is not given.
+TEST(direct, calibration_removes_the_sparse_bin_bias_and_says_uncertain) {
+    const auto synth = make_poisson(one_poisson_unit(20, 2.0, 10, 0.0, 4));
+    const auto r = run_direct(synth.rec, request_for(0.02, 2)).at(0);
+    ASSERT_TRUE(r.estimate.calibration.has_value());
+    EXPECT_GT(r.estimate.calibration->plain_info_rate, 10.0) << "the bias was not there to remove";
+    EXPECT_LT(r.estimate.info_rate_ci95.first, 0.0);
+    EXPECT_GT(r.estimate.info_rate_ci95.second, 0.0);
+    EXPECT_TRUE(r.estimate.calibration->uncertain);
+    for (const auto& w: r.estimate.warnings) {
+        EXPECT_NE(w.rfind("sparse: ", 0), 0u) << w;
+        EXPECT_EQ(w.find("trials: noise entropies"), std::string::npos) << w;
+    }
 }
 
 // Inhomogeneous Poisson firing: as dt -> 0 the single-letter information rate tends to
@@ -140,6 +161,7 @@ TEST(direct, inhomogeneous_poisson_approaches_single_spike_information) {
         previous_gap = gap;
         auto q = request_for(bin_ms, 1);
         q.settings.letters_min = 1;
+        q.settings.surrogates = 0;  // the plain estimate and its sampling rule
         const auto r = run_direct(synth.rec, q).at(0);
         if (bin_ms >= 1.0) {
             EXPECT_NEAR(r.estimate.info_rate, exact_rate, 0.05 * exact_rate) << bin_ms << " ms";
@@ -245,6 +267,7 @@ TEST(direct, stopping_at_the_last_length_that_can_enter_the_fit_changes_no_numbe
     direct_request q;
     q.bin_ms = {1.0, 8.0};
     q.settings.letters_max = 12;
+    q.settings.surrogates = 0;  // the sampling rule's stop (the calibration's: test_direct_calibration.cpp)
     q.threads = 2;
     std::size_t stopped = 0, rows_saved = 0;
     auto check = [&](const recording& rec, const direct_request& request, const char* what) {

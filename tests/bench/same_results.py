@@ -81,9 +81,16 @@ def check_lengths(c, where, ref, new):
         ok = len(rows_new) == len(rows_ref)
     elif why == "sampling rule":
         ok = new["fit_letters_from"] == "sampling rule" and last_row is not None and not last_row["well_sampled"]
+    elif why == "calibration":
+        # The calibration's search ends at the first range beyond its tolerance, or at the longest
+        # length whose model words it can enumerate (then the reference's search ended there too).
+        fits = (new.get("calibration") or {}).get("by_fit") or []
+        ref_fits = (ref.get("calibration") or {}).get("by_fit")
+        ok = (new["fit_letters_from"] == "calibration" and bool(fits) and fits[-1]["fit_letters"][1] == last
+              and (not fits[-1]["within_tolerance"] or ref_fits == fits))
     elif why == "--fit-letters":
         ok = new["fit_letters_from"] == "option" and last == new["fit_letters"][1]
-    else:  # any other reason ("calibration"): the reference stopped for it too, at the same length
+    else:  # any other reason: the reference stopped for it too, at the same length
         ok = why == ref.get("letters_computed_until") and len(rows_new) == len(rows_ref)
     if not ok:
         c.problems.append(f"{where}: stopped at {last} letters for '{why}', which the reference's rows do not bear out")

@@ -274,10 +274,14 @@ direct_estimate direct_lengths::finish(fit_choice choice, length_stop stop, std:
     }
 
     // Few spikes per bin position across the trials: each position's noise entropy rests on one
-    // spike or none and is underestimated, beyond what the corrections and the interval see
-    // (notes/methods.md, "Sparse bins"; the threshold comes from the experiment there).
+    // spike or none and is underestimated, beyond what the corrections and the plain interval see
+    // (notes/methods.md, "Sparse bins"; the threshold comes from the experiment there). A calibrated
+    // record measures that bias and error on its surrogates (corrected, and "uncertain" when the
+    // error is large), so neither this caution nor the one on few trials would add anything to it
+    // (notes/methods-calibration.md, "Cautions").
+    const bool calibrated = out_.calibration.has_value();
     const double per_position = letters_.bins == 0 ? 0 : static_cast<double>(letters_.spikes) / static_cast<double>(letters_.bins);
-    if (per_position < sparse_spikes_per_position) {
+    if (!calibrated && per_position < sparse_spikes_per_position) {
         out_.warnings.push_back(
             "sparse: " + format_fixed(per_position, 3) + " spikes per bin position across all " + std::to_string(n_trials) +
             " trials (below " + format_fixed(sparse_spikes_per_position, 1) +
@@ -285,7 +289,7 @@ direct_estimate direct_lengths::finish(fit_choice choice, length_stop stop, std:
             "information overestimated by an amount that neither the bias corrections nor the interval capture; "
             "use wider bins or more trials, or measure the bias with --null-rotations");
     }
-    if (n_trials < 50) {
+    if (!calibrated && n_trials < 50) {
         out_.warnings.push_back("only " + std::to_string(n_trials) +
                                " trials: noise entropies of all but short words are strongly undersampled");
     }

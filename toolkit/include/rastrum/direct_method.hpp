@@ -61,7 +61,7 @@ struct direct_settings {
     /// Calibration at the record's own sample size (direct_calibration.hpp): surrogate data sets
     /// per record; 0 turns it off. With it, the calibration chooses the fit range (unless
     /// fit_letters is given) and the rate, its standard error and interval are the calibrated ones.
-    unsigned surrogates = 0;
+    unsigned surrogates = 10;
     /// Random splits of the trials in each surrogate's estimate (at most `splits`). The estimator's
     /// mean over random splits does not depend on their number, but its spread does: with 2 splits
     /// instead of 8 the surrogates' spread was 1.6 times the record's (notes/methods-calibration.md),
