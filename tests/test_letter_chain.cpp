@@ -125,6 +125,57 @@ TEST(letter_chain, data_drawn_from_the_model_refit_to_its_entropies) {
     EXPECT_EQ(twice.spikes, drawn.spikes);
 }
 
+// The draw, letter by letter: a model fitted with no pseudo-trials holds the empirical transition
+// frequencies of its data, counted here from the letter matrix (state: whether the trial's previous
+// bin held a spike; the first bin follows a silent one). Trials drawn from it must show, in every bin
+// and state, each letter at that frequency within 5 binomial standard errors, with each bin's
+// non-zero letters in ascending trial order (sparse_letters' contract). Spike-count letters up to 3
+// and spike probabilities of 0.2-0.45 exercise both the skips over silent trials and the draws after
+// a spike.
+TEST(letter_chain, draws_follow_each_bins_transition_frequencies) {
+    const letter_matrix m = random_letters(400, 6, 3, 17);
+    const std::size_t A = 4;
+    auto tally = [&](auto letter_of, std::size_t trials) {
+        std::vector<double> n(m.bins * 2 * A, 0.0);
+        for (std::size_t k = 0; k < trials; ++k) {
+            int state = 0;
+            for (std::size_t b = 0; b < m.bins; ++b) {
+                const letter x = letter_of(b, k);
+                n[(b * 2 + static_cast<std::size_t>(state)) * A + x] += 1;
+                state = x > 0;
+            }
+        }
+        return n;
+    };
+    const std::vector<double> expected = tally([&](std::size_t b, std::size_t k) { return m.at(b, k); }, m.trials);
+    const letter_chain chain(sparse_of(m), 0.0);
+    ASSERT_EQ(chain.alphabet(), A);
+    sparse_letters drawn;
+    const std::size_t trials = 200000;
+    chain.draw(trials, 23, drawn);
+    for (std::size_t b = 0; b < drawn.bins; ++b) {
+        for (std::uint32_t i = drawn.bin_start[b] + 1; i < drawn.bin_start[b + 1]; ++i) {
+            ASSERT_LT(drawn.nonzero[i - 1].trial, drawn.nonzero[i].trial) << "bin " << b;
+        }
+    }
+    const std::vector<double> seen = tally([&](std::size_t b, std::size_t k) { return drawn.at(b, k); }, trials);
+    for (std::size_t b = 0; b < m.bins; ++b) {
+        for (std::size_t state = 0; state < 2; ++state) {
+            const double* e = expected.data() + (b * 2 + state) * A;
+            const double* g = seen.data() + (b * 2 + state) * A;
+            double e_n = 0, g_n = 0;
+            for (std::size_t a = 0; a < A; ++a) e_n += e[a], g_n += g[a];
+            if (e_n == 0) continue;  // a state the data never show in this bin
+            ASSERT_GT(g_n, 0);
+            for (std::size_t a = 0; a < A; ++a) {
+                const double p = e[a] / e_n;
+                EXPECT_NEAR(g[a] / g_n, p, 5 * std::sqrt(p * (1 - p) / g_n) + 1e-12)
+                    << "bin " << b << ", state " << state << ", letter " << a;
+            }
+        }
+    }
+}
+
 // A recording without spikes fits a model that never spikes; the enumeration limit holds.
 TEST(letter_chain, silence_and_the_enumeration_limit) {
     letter_matrix m;
