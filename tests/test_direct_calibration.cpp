@@ -242,6 +242,12 @@ TEST(direct_calibration, trials_for_a_tolerance_follow_the_line_through_the_erro
     EXPECT_EQ(trials_for_tolerance(10, {1.0, 0.5, 0.45}, 0.95), 11u);
     EXPECT_EQ(trials_for_tolerance(10, {1.0, 1.0, 1.1}, 0.5), 0u);
     EXPECT_EQ(trials_for_tolerance(10, {1.0, 0.0, 0.5}, 0.5), 0u);
+    // Which of the two a 0 means: errors that fall (the tolerance lies beyond 16 times the trials)
+    // or errors that do not, where how many trials would do is not known.
+    EXPECT_TRUE(errors_fall_with_trials(root));
+    EXPECT_FALSE(errors_fall_with_trials({1.0, 1.0, 1.1}));
+    EXPECT_FALSE(errors_fall_with_trials({0.164, 0.122, 0.170}));  // down, then up past the start
+    EXPECT_FALSE(errors_fall_with_trials({1.0, 0.0, 0.5}));
 }
 
 // --every-length computes every length for the curves; the calibrated rate, its range and interval

@@ -37,27 +37,49 @@ double calibrated_interval_factor(unsigned surrogates) {
     return boost::math::quantile(boost::math::students_t(static_cast<double>(surrogates - 1)), 0.975);
 }
 
-std::size_t trials_for_tolerance(std::size_t trials, const std::array<double, 3>& errors, double tolerance) {
-    // Least squares of log error on log multiple (0, log 2, log 4): slope and value at the mean.
+namespace {
+
+/// The least-squares line of log error on log multiple (0, log 2, log 4).
+struct log_log_line {
+    double mean_x = 0, mean_y = 0, slope = 0;
+    bool valid = false;  // every error positive
+};
+
+log_log_line line_through(const std::array<double, 3>& errors) {
+    log_log_line line;
     const double x[3] = {0, std::log(2.0), std::log(4.0)};
-    const double mean_x = (x[0] + x[1] + x[2]) / 3;
-    double mean_y = 0;
+    line.mean_x = (x[0] + x[1] + x[2]) / 3;
     for (double e: errors) {
-        if (!(e > 0)) return 0;
-        mean_y += std::log(e) / 3;
+        if (!(e > 0)) return line;
+        line.mean_y += std::log(e) / 3;
     }
     double sxy = 0, sxx = 0;
     for (int i = 0; i < 3; ++i) {
-        sxy += (x[i] - mean_x) * (std::log(errors[static_cast<std::size_t>(i)]) - mean_y);
-        sxx += (x[i] - mean_x) * (x[i] - mean_x);
+        sxy += (x[i] - line.mean_x) * (std::log(errors[static_cast<std::size_t>(i)]) - line.mean_y);
+        sxx += (x[i] - line.mean_x) * (x[i] - line.mean_x);
     }
-    const double slope = sxy / sxx;
+    line.slope = sxy / sxx;
+    line.valid = true;
+    return line;
+}
+
+}  // namespace
+
+bool errors_fall_with_trials(const std::array<double, 3>& errors) {
+    const log_log_line line = line_through(errors);
+    return line.valid && line.slope < 0 && errors[1] < errors[0];
+}
+
+std::size_t trials_for_tolerance(std::size_t trials, const std::array<double, 3>& errors, double tolerance) {
+    const log_log_line line = line_through(errors);
+    if (!line.valid) return 0;
+    const double mean_x = line.mean_x, mean_y = line.mean_y, slope = line.slope;
     if (!(slope < 0) || !(tolerance > 0)) return 0;
     double multiple = std::exp(mean_x + (std::log(tolerance) - mean_y) / slope);
     if (multiple <= 1 && errors[0] > tolerance) {
         // The line passes below the record's own error: from the record's error toward the error at
         // twice its trials instead, so that more trials than the record's are named.
-        const double first = (std::log(errors[1]) - std::log(errors[0])) / x[1];
+        const double first = (std::log(errors[1]) - std::log(errors[0])) / std::log(2.0);
         if (!(first < 0)) return 0;
         multiple = std::exp((std::log(tolerance) - std::log(errors[0])) / first);
     }
@@ -299,7 +321,12 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
             " bits per spike); " +
             (cal.trials_needed > 0
                  ? "about " + std::to_string(cal.trials_needed) + " trials would bring it within (measured on surrogates of 2 and 4 times the trials)"
-                 : std::string("more than 16 times the trials would be needed (measured on surrogates of 2 and 4 times the trials)")) +
+                 : errors_fall_with_trials(cal.error_by_trials)
+                       ? std::string("more than 16 times the trials would be needed (measured on surrogates of 2 and 4 times the trials)")
+                       : std::string("how many trials would do is not known: on surrogates of 2 and 4 times the trials the error did not "
+                                     "fall steadily (" + format_fixed(cal.error_by_trials[0], 2) + ", " +
+                                     format_fixed(cal.error_by_trials[1], 2) + " and " + format_fixed(cal.error_by_trials[2], 2) +
+                                     " bits/s)")) +
             "; wider bins or shorter words also help");
     }
     if (!choice.from_user && chosen.fit.first == chosen.fit.second) {

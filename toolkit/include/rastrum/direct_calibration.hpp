@@ -86,4 +86,11 @@ double calibrated_interval_factor(unsigned surrogates);
 /// the line does not fall, or reaches the tolerance only beyond 16 times the trials. Rounded up.
 std::size_t trials_for_tolerance(std::size_t trials, const std::array<double, 3>& errors, double tolerance);
 
+/// Whether errors measured at 1, 2 and 4 times the trials fall with the trials: every error positive,
+/// the least-squares line through log error against log trials falling, and the error at 2x below the
+/// record's own (the segment trials_for_tolerance falls back on). When they do not (the
+/// surrogates' errors are themselves noisy), how many trials would do is not known, which is not
+/// the same as "more than 16 times" (trials_for_tolerance gives 0 for both).
+bool errors_fall_with_trials(const std::array<double, 3>& errors);
+
 }  // namespace rastrum
