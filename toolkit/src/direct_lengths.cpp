@@ -278,7 +278,7 @@ direct_estimate direct_lengths::finish(fit_choice choice, length_stop stop, std:
     // (notes/methods.md, "Sparse bins"; the threshold comes from the experiment there). A calibrated
     // record measures that bias and error on its surrogates (corrected, and "uncertain" when the
     // error is large), so neither this caution nor the one on few trials would add anything to it
-    // (notes/methods-calibration.md, "Cautions").
+    // (notes/methods-calibration.md, "Cautions of a calibrated record").
     const bool calibrated = out_.calibration.has_value();
     const double per_position = letters_.bins == 0 ? 0 : static_cast<double>(letters_.spikes) / static_cast<double>(letters_.bins);
     if (!calibrated && per_position < sparse_spikes_per_position) {

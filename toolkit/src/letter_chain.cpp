@@ -237,7 +237,7 @@ void letter_chain::draw(std::size_t trials, std::uint64_t seed, sparse_letters& 
     // bin (a tenth of a calibrated run at 0.5 ms bins), the silent-state trials that spike are found
     // by geometric skips (the number of trials passed over before the next one with a non-zero letter,
     // floor(E / -ln(1 - q)) for E exponential with mean 1; Devroye 1986, Non-Uniform Random Variate
-    // Generation, ch. 2, from memory), each draw of which is the same as one Bernoulli(q) per trial.
+    // Generation, ch. 2, from memory): together the same as one Bernoulli(q) draw per silent trial.
     // A skip that lands on a trial which spiked in the bin before is passed over: that trial's letter
     // is drawn from the other distribution, and whether the skip picked it is independent of it.
     std::vector<std::uint8_t> spiked(trials, 0);
