@@ -360,3 +360,25 @@ TEST(direct, rotations_computing_only_the_fit_range_give_the_same_null) {
     EXPECT_EQ(a.info_rates.size(), 7u);
 }
 
+// Ratios of rounding noise (issue 17): a unit without a spike has no bits per spike and no coding
+// efficiency (both undefined: 0 / 0), whatever rounding leaves in its entropy rates; a unit with one
+// spike has both.
+TEST(direct, a_silent_unit_has_no_ratios) {
+    auto synth = make_frozen_bins(independent_bins({10, 20}, 1.0, 3));
+    synth.rec.units[0].spike_times.clear();
+    auto& one = synth.rec.units[1].spike_times;
+    one.assign(1, synth.rec.trial_start[2] + 0.0101);
+    for (unsigned surrogates: {0u, 10u}) {
+        auto q = request_for(2.0, 4);
+        q.settings.surrogates = surrogates;
+        const auto records = run_direct(synth.rec, q);
+        ASSERT_EQ(records.size(), 2u);
+        SCOPED_TRACE("surrogates " + std::to_string(surrogates));
+        EXPECT_TRUE(std::isnan(records[0].bits_per_spike));
+        EXPECT_TRUE(std::isnan(records[0].coding_efficiency)) << records[0].coding_efficiency;
+        EXPECT_TRUE(std::isfinite(records[1].bits_per_spike));
+        EXPECT_TRUE(std::isfinite(records[1].coding_efficiency));
+        EXPECT_GT(records[1].estimate.total_rate, 0.0);
+    }
+}
+
