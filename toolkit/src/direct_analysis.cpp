@@ -112,9 +112,16 @@ std::vector<direct_record> run_direct(const recording& rec, const direct_request
         } catch (const insufficient_data& e) {
             throw insufficient_data(rec.source + ", unit " + r.unit + " at " + format_number(bin_ms) + " ms: " + e.what());
         }
+        // Ratios only where their denominators are more than rounding: without a spike the entropy
+        // rates are rounding noise (about 1e-12 bits/s from log N - n log n / N of the one word),
+        // and a total rate of a unit with spikes is far above this floor (one spike in 40 trials of
+        // 2 s at 2 ms: about 0.2 bits/s).
+        constexpr double rounding_floor_bits_per_s = 1e-9;
         const double nan = std::numeric_limits<double>::quiet_NaN();
         r.bits_per_spike = spikes > 0 ? r.estimate.info_rate / r.mean_rate_hz : nan;
-        r.coding_efficiency = r.estimate.total_rate > 0 ? r.estimate.info_rate / r.estimate.total_rate : nan;
+        r.coding_efficiency = spikes > 0 && r.estimate.total_rate > rounding_floor_bits_per_s
+                                  ? r.estimate.info_rate / r.estimate.total_rate
+                                  : nan;
         r.warnings = r.estimate.warnings;
         if (request.null_rotations > 0) {
             // The rotated estimates use the real one's fit range, and only those lengths are computed:
