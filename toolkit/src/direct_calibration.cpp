@@ -142,6 +142,17 @@ double mean_rate_hz(const sparse_letters& letters, seconds bin_width) {
     return span > 0 ? static_cast<double>(letters.spikes) / span : 0.0;
 }
 
+/// What an uncertain record's caution says of more trials: how many would do, that more than 16 times
+/// would be needed, or that it is not known (the errors of the 2x and 4x surrogates do not fall).
+std::string trials_advice(const rate_calibration& cal) {
+    const std::string measured = "(measured on surrogates of 2 and 4 times the trials)";
+    if (cal.trials_needed > 0) return "about " + std::to_string(cal.trials_needed) + " trials would bring it within " + measured;
+    if (errors_fall_with_trials(cal.error_by_trials)) return "more than 16 times the trials would be needed " + measured;
+    return "how many trials would do is not known: on surrogates of 2 and 4 times the trials the error did not fall steadily (" +
+           format_fixed(cal.error_by_trials[0], 2) + ", " + format_fixed(cal.error_by_trials[1], 2) + " and " +
+           format_fixed(cal.error_by_trials[2], 2) + " bits/s)";
+}
+
 /// The upper half of lengths letters_min..b, as the sampling rule fits them.
 std::pair<int, int> upper_half(int b, int letters_min) { return {std::max(letters_min, (b + 1) / 2), b}; }
 
@@ -319,14 +330,7 @@ direct_estimate estimate_calibrated(const sparse_letters& letters, seconds bin_w
             " bits/s (" + format_fixed(100 * settings.error_tolerance, 0) + "% of the rate, or " +
             format_number(settings.error_floor_bits_per_spike) +
             " bits per spike); " +
-            (cal.trials_needed > 0
-                 ? "about " + std::to_string(cal.trials_needed) + " trials would bring it within (measured on surrogates of 2 and 4 times the trials)"
-                 : errors_fall_with_trials(cal.error_by_trials)
-                       ? std::string("more than 16 times the trials would be needed (measured on surrogates of 2 and 4 times the trials)")
-                       : std::string("how many trials would do is not known: on surrogates of 2 and 4 times the trials the error did not "
-                                     "fall steadily (" + format_fixed(cal.error_by_trials[0], 2) + ", " +
-                                     format_fixed(cal.error_by_trials[1], 2) + " and " + format_fixed(cal.error_by_trials[2], 2) +
-                                     " bits/s)")) +
+            trials_advice(cal) +
             "; wider bins or shorter words also help");
     }
     if (!choice.from_user && chosen.fit.first == chosen.fit.second) {

@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <iterator>
 #include <limits>
 
 namespace rastrum {
@@ -243,6 +244,15 @@ void letter_chain::draw(std::size_t trials, std::uint64_t seed, sparse_letters& 
     std::vector<std::uint8_t> spiked(trials, 0);
     std::vector<std::uint32_t> before, after;  // the trials that spiked in the previous bin, and in this one
     std::vector<sparse_letters::entry> quiet, active;  // this bin's non-zero letters by state
+    // Inversion of u (uniform on [0, the mass of p[from..]) over the letters from `from` up.
+    auto invert = [this](const double* p, letter from, double u) {
+        letter a = from;
+        while (u >= p[a] && a + 1 < alphabet_) {
+            u -= p[a];
+            ++a;
+        }
+        return a;
+    };
     for (std::size_t t = 0; t < bins_; ++t) {
         const double* silent = distribution(t, 0);
         const double* after_spike = distribution(t, 1);
@@ -256,32 +266,21 @@ void letter_chain::draw(std::size_t trials, std::uint64_t seed, sparse_letters& 
                 const auto trial = static_cast<std::uint32_t>(k);
                 if (spiked[trial]) continue;
                 // The letter given that it is not 0: inversion over silent[1..].
-                letter a = 1;
-                double u = rng.uniform() * q;
-                while (u >= silent[a] && a + 1 < alphabet_) {
-                    u -= silent[a];
-                    ++a;
-                }
-                quiet.push_back({trial, a});
+                quiet.push_back({trial, invert(silent, 1, rng.uniform() * q)});
             }
         }
         for (const std::uint32_t trial: before) {
-            double u = rng.uniform();
-            letter a = 0;
-            while (u >= after_spike[a] && a + 1 < alphabet_) {
-                u -= after_spike[a];
-                ++a;
-            }
+            const letter a = invert(after_spike, 0, rng.uniform());
             if (a > 0) active.push_back({trial, a});
         }
         // Both lists ascend by trial; merged, the bin's letters are in trial order.
         for (const std::uint32_t trial: before) spiked[trial] = 0;
         after.clear();
-        std::size_t i = 0, j = 0;
-        while (i < quiet.size() || j < active.size()) {
-            const bool from_quiet = j == active.size() || (i < quiet.size() && quiet[i].trial < active[j].trial);
-            const sparse_letters::entry e = from_quiet ? quiet[i++] : active[j++];
-            out.nonzero.push_back(e);
+        const std::size_t first = out.nonzero.size();
+        std::merge(quiet.begin(), quiet.end(), active.begin(), active.end(), std::back_inserter(out.nonzero),
+                   [](const sparse_letters::entry& x, const sparse_letters::entry& y) { return x.trial < y.trial; });
+        for (std::size_t i = first; i < out.nonzero.size(); ++i) {
+            const sparse_letters::entry& e = out.nonzero[i];
             out.largest = std::max(out.largest, e.value);
             out.spikes += e.value;
             after.push_back(e.trial);
