@@ -67,7 +67,6 @@ private:
     /// those starting at t = b - L + 1, when that trial has no spike in [t, b). `previous` is the
     /// trial's spike bin before b.
     static bool starts_fresh(std::uint32_t previous, std::size_t t) { return previous == no_previous || previous < t; }
-    void sort_runs_by_last_letter(entry* first, entry* last);
     /// The letter of `trial` in bin b: from a bit per bin and trial (which bins hold spikes), made at the
     /// first growth; the value from the bin's non-zero letters when letters exceed 1.
     letter letter_at(std::size_t b, std::uint32_t trial) const {
