@@ -22,8 +22,11 @@ namespace rastrum {
 namespace nsb_detail {
 
 namespace {
-using boost::math::digamma;
-using boost::math::trigamma;
+// Digamma and trigamma in double: Boost's default promotes double arguments to long double, whose
+// logarithms were a fifth of a calibrated stimulus-information run, for no digits the estimator keeps.
+using double_policy = boost::math::policies::policy<boost::math::policies::promote_double<false>>;
+double digamma(double x) { return boost::math::digamma(x, double_policy()); }
+double trigamma(double x) { return boost::math::trigamma(x, double_policy()); }
 
 // Beyond these arguments the asymptotic series are exact to double precision, and the direct
 // formulas would lose the digits that the series keep.
@@ -86,6 +89,17 @@ double log_evidence(const grouped_counts& g, double beta) {
         if (grp.value > 0) sum += grp.multiplicity * log_rising_excess(beta, grp.value);
     }
     return sum;
+}
+
+double dirichlet_entropy_mean(const grouped_counts& g, double beta) {
+    // E[H] = psi(A + 1) - sum (a_i/A) psi(a_i + 1), a_i = n_i + beta, A = sum a_i.
+    const double total = g.samples + g.alphabet * beta;
+    double dbar = 0;
+    for (const auto& grp: g.groups) {
+        const double a = grp.value + beta;
+        dbar += grp.multiplicity * (a / total) * digamma(a + 1);
+    }
+    return digamma(total + 1) - dbar;
 }
 
 entropy_moments dirichlet_entropy_moments(const grouped_counts& g, double beta) {
@@ -169,7 +183,9 @@ using values = std::array<double, 4>;
 
 class posterior {
 public:
-    explicit posterior(const grouped_counts& g): g_(g) {}
+    /// Without `with_variance` the integrands of the variance are 0 and are not computed.
+    posterior(const grouped_counts& g, bool with_variance): g_(g), with_variance_(with_variance) {}
+    bool with_variance() const { return with_variance_; }
 
     /// ln of the unnormalised posterior density in x = ln beta: P(n|beta) xi'(beta) beta.
     double log_density(double x) const {
@@ -193,11 +209,13 @@ public:
 private:
     values weighted(double w, double beta) const {
         if (!(w > 1e-300)) return {0, 0, 0, 0};
+        if (!with_variance_) return {w, w * (dirichlet_entropy_mean(g_, beta) - reference), 0, 0};
         const entropy_moments m = dirichlet_entropy_moments(g_, beta);
         const double d = m.mean - reference;
         return {w, w * d, w * m.variance, w * d * d};
     }
     const grouped_counts& g_;
+    bool with_variance_;
 };
 
 /// Golden-section search for the maximum of the log density on [a, b].
@@ -292,7 +310,8 @@ values integrate(const posterior& p, const std::vector<double>& breaks) {
             const values& d = part.excess;
             const double mean_error = std::abs(d[1] - m.shift * d[0]) / total[0];
             const double variance_error =
-                std::abs(d[2] + d[3] - second * d[0] - 2 * m.shift * (d[1] - m.shift * d[0])) / total[0];
+                p.with_variance() ? std::abs(d[2] + d[3] - second * d[0] - 2 * m.shift * (d[1] - m.shift * d[0])) / total[0]
+                                  : 0.0;
             return std::array<double, 2>{mean_error, variance_error};
         };
         double mean_error = 0, variance_error = 0, worst_score = 0;
@@ -378,12 +397,11 @@ std::vector<double> breakpoints(const posterior& p, const coarse_scan& scan, con
                  breaks.end());
     return breaks;
 }
-}  // namespace
-
-nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size) {
+/// The posterior mean and, `with_variance`, standard deviation of the entropy, in bits.
+nsb_estimate nsb_integral(const std::vector<count>& counts, double alphabet_size, bool with_variance) {
     const grouped_counts g = group_counts(counts, alphabet_size);
     if (g.alphabet == 1) return {};  // one symbol: H = 0 under every prior
-    posterior p(g);
+    posterior p(g, with_variance);
 
     const double x_low = std::log(lowest_beta_times_k / g.alphabet);
     const double x_high = std::log(highest_beta_per_n2) + 2 * std::log1p(g.samples);
@@ -393,7 +411,7 @@ nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size)
     for (double x: peaks) peak_log_density.push_back(p.log_density(x));
     const auto best = std::max_element(peak_log_density.begin(), peak_log_density.end()) - peak_log_density.begin();
     p.log_peak = peak_log_density[static_cast<std::size_t>(best)];
-    p.reference = dirichlet_entropy_moments(g, std::exp(peaks[static_cast<std::size_t>(best)])).mean;
+    p.reference = dirichlet_entropy_mean(g, std::exp(peaks[static_cast<std::size_t>(best)]));
 
     const auto [first, last] = window(p, scan, peaks);
     values total = integrate(p, breakpoints(p, scan, peaks, first, last));
@@ -408,7 +426,17 @@ nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size)
 
     const moments_of m(total);
     const double ln2 = std::log(2.0);
-    return {(p.reference + m.shift) / ln2, std::sqrt(std::max(m.variance, 0.0)) / ln2};
+    return {(p.reference + m.shift) / ln2, with_variance ? std::sqrt(std::max(m.variance, 0.0)) / ln2 : 0.0};
+}
+
+}  // namespace
+
+nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size) {
+    return nsb_integral(counts, alphabet_size, true);
+}
+
+double nsb_entropy_mean(const std::vector<count>& counts, double alphabet_size) {
+    return nsb_integral(counts, alphabet_size, false).entropy_bits;
 }
 
 }  // namespace rastrum

@@ -30,6 +30,9 @@ struct entropy_moments {
     double variance = 0;  // Var[H | n, beta]
 };
 
+/// Posterior mean of H = -sum p_i ln p_i when p ~ Dirichlet(n_i + beta).
+double dirichlet_entropy_mean(const grouped_counts& g, double beta);
+
 /// Posterior mean and variance of H = -sum p_i ln p_i when p ~ Dirichlet(n_i + beta).
 entropy_moments dirichlet_entropy_moments(const grouped_counts& g, double beta);
 entropy_moments dirichlet_entropy_moments(const std::vector<count>& counts, double alphabet, double beta);

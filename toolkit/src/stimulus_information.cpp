@@ -262,7 +262,7 @@ double response_entropy(const std::vector<word_code>& responses, double alphabet
     case info_estimator::panzeri_treves:
         return plugin_entropy(s) + (relevant_responses(c, alphabet) - 1) / (2 * static_cast<double>(s.samples) * std::log(2.0));
     case info_estimator::quadratic_extrapolation: return extrapolated_entropy(responses, settings);
-    case info_estimator::nsb: return nsb_entropy(c, alphabet).entropy_bits;
+    case info_estimator::nsb: return nsb_entropy_mean(c, alphabet);
     }
     throw internal_error("unknown information estimator");
 }
@@ -373,7 +373,7 @@ double stimulus_information(const labelled_responses& t, info_estimator estimato
     case info_estimator::quadratic_extrapolation: return extrapolated_information(t, settings);
     case info_estimator::nsb:
         return information_with(histograms_of(t, {}),
-                                [&](const std::vector<count>& c) { return nsb_entropy(c, t.alphabet).entropy_bits; });
+                                [&](const std::vector<count>& c) { return nsb_entropy_mean(c, t.alphabet); });
     }
     throw internal_error("unknown information estimator");
 }

@@ -19,4 +19,9 @@ struct nsb_estimate {
 /// returns the prior mean and sd.
 nsb_estimate nsb_entropy(const std::vector<count>& counts, double alphabet_size);
 
+/// The posterior mean alone, in bits: what the information estimators use. The same integral with
+/// its accuracy target on the mean only, the variance's terms (about a third of the work) skipped:
+/// nsb_entropy's entropy_bits within its accuracy (1e-9 of the value). Same contract otherwise.
+double nsb_entropy_mean(const std::vector<count>& counts, double alphabet_size);
+
 }  // namespace rastrum
