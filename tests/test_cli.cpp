@@ -323,8 +323,9 @@ TEST(cli, stiminfo_writes_stable_json_and_refuses_bad_labels_and_windows) {
     EXPECT_NE(repeated.err.find("'a' is named twice"), std::string::npos) << repeated.err;
     EXPECT_FALSE(file_exists(folder + "/x.json"));
 
-    // Without resamples or shuffles the table says so instead of printing [0, 0] and p = 1.
-    const auto bare = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --bootstrap 0 --null-shuffles 0");
+    // Without resamples, shuffles or calibration the table says so instead of printing [0, 0] and p = 1.
+    const auto bare = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --bootstrap 0 --null-shuffles 0 "
+                                  "--surrogates 0");
     ASSERT_EQ(bare.exit_code, 0) << bare.err;
     EXPECT_NE(bare.out.find("none"), std::string::npos) << bare.out;
     EXPECT_NE(bare.out.find("n/a"), std::string::npos) << bare.out;

@@ -140,7 +140,7 @@ TEST(bounds, a_population_gets_what_the_bound_leaves_for_its_joint_responses) {
     ASSERT_EQ(run_rastrum("synth conditions --out " + file + " --duration-s 1 --trials-per-condition 500 "
                           "--means 20,40,60,90 --means 30,10,30,10 --means 5,5,5,5").exit_code, 0);
     const std::string analysis = "stiminfo " + file + " --window-ms 0:1000 --code count --population u1,u2,u3 --threads 1 "
-                                 "--bootstrap 0 --null-shuffles 0 --quiet --max-memory ";
+                                 "--bootstrap 0 --null-shuffles 0 --surrogates 0 --quiet --max-memory ";
     const auto tight = run_rastrum(analysis + "10M");
     EXPECT_EQ(tight.exit_code, 4) << tight.err;
     EXPECT_TRUE(says(tight.err, "--population u1,u2,u3") && says(tight.err, "joint responses") &&

@@ -122,7 +122,21 @@ TEST(curves, stiminfo_trial_fraction_and_time_course) {
         EXPECT_GE(null.y_high[i], null.y.values[i]);
         EXPECT_EQ(plugin.y.values[i], records[i].info_bits.at(info_estimator::plugin));
     }
-    const auto& jackknife = find(curves, "info_vs_time", "u1", "jackknife");
+    // Calibrated (the default), the calibrated value's series carries the band; without the
+    // calibration, the interval estimator's series carries the envelope interval.
+    const auto& calibrated = find(curves, "info_vs_time", "u1", "calibrated");
+    ASSERT_EQ(calibrated.y_low.size(), 3u);
+    for (std::size_t i = 0; i < 3; ++i) {
+        EXPECT_EQ(calibrated.y.values[i], records[i].calibration->value);
+        EXPECT_LT(calibrated.y_low[i], calibrated.y.values[i]);
+        EXPECT_GT(calibrated.y_high[i], calibrated.y.values[i]);
+    }
+    EXPECT_TRUE(find(curves, "info_vs_time", "u1", "jackknife").y_low.empty());
+    stiminfo_request plain = q;
+    plain.surrogates = 0;
+    const auto plain_records = run_stiminfo(make_conditions(spec).rec, plain);
+    const auto plain_curves = stiminfo_curves(plain_records, plain);
+    const auto& jackknife = find(plain_curves, "info_vs_time", "u1", "jackknife");
     EXPECT_EQ(jackknife.y_low.size(), 3u) << "the interval estimator's series carries the interval";
     int higher = 0;
     for (const auto& c: curves) {

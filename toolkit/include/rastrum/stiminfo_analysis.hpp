@@ -32,8 +32,10 @@ struct stiminfo_request {
     unsigned bootstrap = 200;
     info_estimator interval_estimator = info_estimator::jackknife;
     /// Calibration at the record's own sample size (stiminfo_calibration.hpp): N surrogate data sets
-    /// (0: off; else at least 2), and as many at 2x and 4x the trials for the trials needed.
-    unsigned surrogates = 0;
+    /// (0: off; else at least 2), and as many at 2x and 4x the trials for the trials needed. On by
+    /// default, with as many as the direct method's: coverage and cost at 10 in notes/validation-
+    /// coverage.md and notes/methods-calibration.md.
+    unsigned surrogates = 10;
     unsigned trial_fraction_repeats = 4;  // draws per fraction of the trials; 0: no trial-fraction curve
     info_settings settings;
     unsigned threads = 1;
