@@ -64,3 +64,31 @@ TEST(cli, stiminfo_calibration_reports_its_estimator_interval_and_trials_needed)
     EXPECT_TRUE(plain["records"][0]["calibration"].is_null());
     EXPECT_TRUE(plain["records"][0]["info_calibrated_bits"].is_null());
 }
+
+// Calibration is on by default. Where many records are uncertain, the table says so in one line that
+// names them, and each record keeps its own caution (its error, tolerance and trials) in the JSON.
+TEST(cli, stiminfo_is_calibrated_by_default_and_many_uncertain_records_share_one_line) {
+    const std::string folder = fresh_folder("cli-stiminfo-uncertain");
+    const std::string rec = folder + "/c.h5";
+    // 10 trials per condition: every record's calibrated error is far above 10% of its value.
+    ASSERT_EQ(run_rastrum("synth conditions --out " + rec + " --duration-s 0.5 --trials-per-condition 10 "
+                          "--means 2,4,6,9 --means 1,1,2,2 --means 3,3,3,3 --means 5,2,5,2").exit_code, 0);
+    const auto r = run_rastrum("stiminfo " + rec + " --window-ms 0:500 --code count --null-shuffles 20 --bootstrap 0 "
+                               "--json " + folder + "/s.json");
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    const json d = json::parse(read_file(folder + "/s.json"));
+    EXPECT_EQ(d["parameters"]["surrogates"], 10);
+    std::size_t uncertain = 0;
+    for (const json& record: d["records"]) {
+        ASSERT_TRUE(record["calibration"].is_object());
+        if (!record["calibration"]["uncertain"].get<bool>()) continue;
+        ++uncertain;
+        bool said = false;
+        for (const json& w: record["warnings"]) said = said || w.get<std::string>().rfind("uncertain: at 10 trials", 0) == 0;
+        EXPECT_TRUE(said) << record["warnings"].dump();
+    }
+    ASSERT_GT(uncertain, 3u) << "the design must give more uncertain records than are listed one by one";
+    const std::string line = "uncertain, " + std::to_string(uncertain) + " of 4 records (u1 at 0-500 ms";
+    EXPECT_NE(r.out.find(line), std::string::npos) << r.out;
+    EXPECT_EQ(r.out.find("uncertain: at"), std::string::npos) << "one line, not one per record:\n" << r.out;
+}

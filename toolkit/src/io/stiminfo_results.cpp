@@ -12,6 +12,35 @@
 namespace rastrum {
 
 namespace {
+
+/// Records whose caution is "uncertain": printed one by one when few, else in one line (below).
+constexpr std::size_t uncertain_listed_alone = 3;
+
+bool is_uncertain(const std::string& caution) { return caution.rfind("uncertain:", 0) == 0; }
+
+/// One line for many uncertain records: which they are, unit by unit with their windows, and where
+/// each one's error and trials needed are. Each record's full sentence stays in the JSON and CSV;
+/// printed fifteen times over, three lines each, it hid every other caution of the table.
+std::string uncertain_summary(const std::vector<stiminfo_record>& records, std::size_t count) {
+    std::vector<std::pair<std::string, std::string>> by_unit;  // unit, its windows
+    for (const auto& r: records) {
+        if (std::none_of(r.warnings.begin(), r.warnings.end(), is_uncertain)) continue;
+        char window[64];
+        std::snprintf(window, sizeof window, "%g-%g", r.window.first * 1000, r.window.second * 1000);
+        auto it = std::find_if(by_unit.begin(), by_unit.end(), [&](const auto& u) { return u.first == r.unit; });
+        if (it == by_unit.end()) {
+            by_unit.emplace_back(r.unit, window);
+        } else {
+            it->second += std::string(", ") + window;
+        }
+    }
+    std::string units;
+    for (const auto& [unit, windows]: by_unit) units += (units.empty() ? "" : "; ") + unit + " at " + windows + " ms";
+    return "uncertain, " + std::to_string(count) + " of " + std::to_string(records.size()) + " records (" + units +
+           "): each calibrated error exceeds its tolerance (10% of the value, or 0.02 bits); the 95% interval "
+           "shows the error and 'trials needed' the trials per condition that would meet it (each record's own "
+           "caution is in the JSON and CSV); more trials per condition, a coarser code or a shorter window would help";
+}
 using json = nlohmann::ordered_json;
 
 json bin_ms_of(const stiminfo_request& q) {
@@ -328,9 +357,19 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
         any = true;
         s << "  every record: " << w << "\n";
     }
+    const auto uncertain = static_cast<std::size_t>(std::count_if(records.begin(), records.end(), [](const stiminfo_record& r) {
+        return std::any_of(r.warnings.begin(), r.warnings.end(), is_uncertain);
+    }));
+    const bool summarised = uncertain > uncertain_listed_alone;
+    if (summarised) {
+        if (!any) s << "\nCautions:\n";
+        any = true;
+        s << "  " << uncertain_summary(records, uncertain) << "\n";
+    }
     for (const auto& r: records) {
         for (const auto& w: r.warnings) {
             if (std::find(shared.begin(), shared.end(), w) != shared.end()) continue;
+            if (summarised && is_uncertain(w)) continue;
             if (!any) s << "\nCautions:\n";
             any = true;
             std::snprintf(line, sizeof line, "  %s at %g-%g ms: ", r.unit.c_str(), r.window.first * 1000, r.window.second * 1000);
