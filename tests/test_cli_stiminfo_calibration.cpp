@@ -92,3 +92,45 @@ TEST(cli, stiminfo_is_calibrated_by_default_and_many_uncertain_records_share_one
     EXPECT_NE(r.out.find(line), std::string::npos) << r.out;
     EXPECT_EQ(r.out.find("uncertain: at"), std::string::npos) << "one line, not one per record:\n" << r.out;
 }
+
+// Where the model fitted to the responses seen cannot stand in for the record, the calibration
+// declines and says why: no calibrated value or interval (null in the JSON, "-" in the table), the
+// envelope interval instead, and what would help. Two such records: one whose responses are all
+// distinct, and one of binary words of 50 letters with about one spike per trial, where a model over
+// the responses seen gave calibrated values of 0.46-0.81 bits for true ones of 0.09-0.37 (the
+// recording's answers file holds the exact count information, which the words carry too: spikes are
+// placed uniformly in the window).
+TEST(cli, stiminfo_calibration_declines_where_its_model_cannot_stand_in_for_the_record) {
+    const std::string folder = fresh_folder("cli-stiminfo-declined");
+    const std::string distinct = folder + "/distinct.h5", sparse = folder + "/sparse.h5";
+    ASSERT_EQ(run_rastrum("synth conditions --out " + distinct + " --seed 4 --duration-s 0.5 --trials-per-condition 20 "
+                          "--means 20,25,30,35").exit_code, 0);
+    ASSERT_EQ(run_rastrum("synth conditions --out " + sparse + " --seed 11 --duration-s 0.5 --trials-per-condition 40 "
+                          "--labels a,b,c,d,e,f,g,h --means 1.7071,1,0.2929,0,0.2929,1,1.7071,2").exit_code, 0);
+    const std::string words = " --window-ms 0:500 --code word --bin-ms 10 --binary --null-shuffles 20 --bootstrap 20 ";
+    for (const auto& [file, why]: {std::pair<std::string, std::string>{distinct, "not calibrated: 80 of the 80 trials' responses are distinct"},
+                                   {sparse, "of the responses' probability lies on responses never seen"}}) {
+        const auto r = run_rastrum("stiminfo " + file + words + "--json " + folder + "/s.json");
+        ASSERT_EQ(r.exit_code, 0) << r.err;
+        EXPECT_NE(r.out.find(why), std::string::npos) << r.out;
+        EXPECT_NE(r.out.find("a coarser code"), std::string::npos) << r.out;
+        const json record = json::parse(read_file(folder + "/s.json"))["records"][0];
+        EXPECT_TRUE(record["calibration"]["not_calibrated"].get<bool>());
+        EXPECT_TRUE(record["info_calibrated_bits"].is_null());
+        EXPECT_TRUE(record["info_calibrated_ci95_bits"][0].is_null());
+        EXPECT_TRUE(record["info_calibrated_estimator"].is_null());
+        EXPECT_TRUE(record["calibration"]["uncertain"].get<bool>());
+        // The envelope interval stands, and it holds the truth (the answers file's count information).
+        if (file == sparse) {
+            const json answers = json::parse(read_file(folder + "/sparse.answers.json"));
+            const double truth = answers["units"][0]["count_info_bits"];
+            EXPECT_LE(record["info_ci95_bits"][0].get<double>(), truth);
+            EXPECT_GE(record["info_ci95_bits"][1].get<double>(), truth);
+        }
+    }
+    // The same codes on counts: calibrated as usual.
+    const auto counts = run_rastrum("stiminfo " + sparse + " --window-ms 0:500 --code count --null-shuffles 0 --bootstrap 0 "
+                                    "--quiet --json -");
+    ASSERT_EQ(counts.exit_code, 0) << counts.err;
+    EXPECT_FALSE(json::parse(counts.out)["records"][0]["calibration"]["not_calibrated"].get<bool>());
+}

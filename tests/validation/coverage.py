@@ -208,7 +208,8 @@ def calibration_raw(r, truth, design, seed):
             "info_bits": r["info_bits"], "envelope": r["info_ci95_bits"], "warnings": r["warnings"],
             "calibration": None if c is None else {k: c[k] for k in (
                 "recommended_estimator", "value_bits", "error_bits", "ci95_bits", "tolerance_bits", "uncertain",
-                "model_bits", "shrinkage", "trials_per_condition_needed", "by_estimator", "by_trials")}}
+                "model_bits", "shrinkage", "trials_per_condition_needed", "by_estimator", "by_trials",
+                "not_calibrated", "unlike_model", "unseen_mass")}}
 
 
 def calibrated_observation(r, truth, name):

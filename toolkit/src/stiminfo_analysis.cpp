@@ -481,8 +481,9 @@ std::vector<stiminfo_record> run_stiminfo(const recording& rec, const stiminfo_r
         if (q.null_shuffles > 0 && r.null_p_value > 0.05) {
             r.warnings.push_back("not significant against shuffled labels (p = " + format_fixed(r.null_p_value, 3) + ")");
         }
-        const double low = r.calibration ? r.calibration->interval.first : r.interval.first;  // the headline interval's
-        if (q.null_shuffles > 0 && (q.bootstrap > 1 || r.calibration) && (r.null_p_value <= 0.05) != (low > 0)) {
+        const bool calibrated = r.calibration && !r.calibration->not_calibrated;
+        const double low = calibrated ? r.calibration->interval.first : r.interval.first;  // the headline interval's
+        if (q.null_shuffles > 0 && (q.bootstrap > 1 || calibrated) && (r.null_p_value <= 0.05) != (low > 0)) {
             r.warnings.push_back(r.null_p_value <= 0.05
                                      ? "significant against shuffled labels, but the interval reaches 0: the amount is uncertain"
                                      : "the interval excludes 0, but the shuffle test does not reject 0: treat as not shown");

@@ -9,6 +9,7 @@
 #include <algorithm>
 #include <cmath>
 #include <numeric>
+#include <set>
 
 namespace rastrum {
 
@@ -17,6 +18,17 @@ namespace {
 // Random tags of the surrogates' streams (derive_seed), apart from every other use of the record's seed.
 constexpr std::uint64_t surrogate_draw_tag = 0x57ca1d7a0ULL;
 constexpr std::uint64_t surrogate_split_tag = 0x57ca1d7a1ULL;
+// An estimator whose value on the record lies further than this many spreads (of one more surrogate)
+// from its mean on the surrogates is not calibrated by them (about 1 in 1,000 for a t with 9 degrees
+// of freedom; notes/methods-calibration.md, "When the model is unlike the record").
+constexpr double model_check_spreads = 5;
+// The calibration declines a record whose unseen mass (Good-Turing) exceeds this in an alphabet of
+// more than alphabet_per_trial responses per trial: measured where the model fails (binary words of
+// 50 letters with about one spike per trial: unseen mass 0.25-0.37, calibrated values 0.46-0.81 bits
+// against true 0.09-0.37) and where it works (words of two count letters: at most 0.23, in an
+// alphabet of about two responses per trial); notes/methods-calibration.md.
+constexpr double max_unseen_mass = 0.2;
+constexpr double alphabet_per_trial = 10;
 
 double entropy_bits(const std::vector<double>& p) {
     double h = 0;
@@ -175,6 +187,7 @@ labelled_responses response_model::draw(const std::vector<std::size_t>& trials_p
 }
 
 std::string uncertain_caution(const stiminfo_calibration& c) {
+    if (c.not_calibrated) return c.reason;
     const error_at_size& now = c.by_size.front();
     const std::string needed =
         c.trials_per_condition_needed
@@ -267,7 +280,8 @@ stiminfo_calibration calibrate_stiminfo(const labelled_responses& t, const std::
     for (const auto& [e, v]: estimates) which.push_back(e);
 
     const auto values = surrogate_values(model, per_condition, 1, q.surrogates, which, settings);
-    double best = INFINITY;
+    double best = INFINITY, best_unlike = INFINITY;
+    info_estimator closest_unlike = which.front();
     for (info_estimator e: which) {
         estimator_calibration c;
         c.estimate = estimates.at(e);
@@ -276,20 +290,88 @@ stiminfo_calibration calibrate_stiminfo(const labelled_responses& t, const std::
         c.rmse = std::hypot(c.bias, c.spread);
         c.error = calibrated_error(c.bias, c.spread, q.surrogates);
         cal.by_estimator[e] = c;
+        // A posterior predictive check (Gelman, Carlin, Stern & Rubin 2004, Bayesian Data Analysis,
+        // ch. 6; from memory): the record's value should look like one more of the surrogates'.
+        const double gap = std::abs(c.estimate - (cal.model_bits + c.bias));
+        const double allowed = model_check_spreads * c.spread * std::sqrt(1 + 1.0 / q.surrogates) + q.floor_bits;
+        if (gap > allowed) {
+            cal.unlike_model.push_back(e);
+            if (gap / allowed < best_unlike) best_unlike = gap / allowed, closest_unlike = e;
+            continue;
+        }
         if (c.rmse < best) {  // ties keep the earlier estimator of all_info_estimators' order
             best = c.rmse;
             cal.recommended = e;
         }
     }
+    cal.t_quantile = calibrated_interval_factor(q.surrogates);
+    const double base = mean_trials(per_condition);
+    const std::size_t distinct = std::set<word_code>(t.response.begin(), t.response.end()).size();
+    {
+        std::map<word_code, std::size_t> seen;
+        for (word_code r: t.response) ++seen[r];
+        double once = 0;
+        for (const auto& [r, n]: seen) once += n == 1 ? 1 : 0;
+        cal.unseen_mass = once / static_cast<double>(t.response.size());
+    }
+    const double trials = static_cast<double>(t.response.size());
+    const bool saturated = 2 * distinct > t.response.size();
+    const bool unseen = cal.unseen_mass > max_unseen_mass && t.alphabet > alphabet_per_trial * trials;
+    if (saturated || unseen) {
+        // Most trials' responses are their own (every estimator then sits near its ceiling whatever
+        // the truth: all distinct, plug-in = H(S)), or much of the responses' mass lies on responses
+        // never seen, in an alphabet far larger than the trials: a model over the responses seen
+        // leaves that mass out, its data sets repeat responses more often than the record's, and
+        // the estimators' errors measured on them come out too small (notes/methods-calibration.md,
+        // "When the model cannot stand in for the record").
+        cal.not_calibrated = true;
+        const estimator_calibration& chosen = cal.by_estimator.at(cal.recommended);
+        cal.value = NAN;
+        cal.error = chosen.error;
+        cal.interval = {NAN, NAN};
+        cal.tolerance = q.floor_bits;
+        cal.uncertain = true;
+        cal.by_size.push_back({1, base, q.surrogates, chosen.bias, chosen.spread, chosen.error});
+        const std::string why =
+            saturated ? std::to_string(distinct) + " of the " + std::to_string(t.response.size()) +
+                            " trials' responses are distinct (more than half), so the estimators sit near their ceiling "
+                            "whatever the truth"
+                      : "about " + format_fixed(100 * cal.unseen_mass, 0) + "% of the responses' probability lies on responses " +
+                            "never seen (the share of trials whose response occurs once), in an alphabet of " +
+                            format_number(t.alphabet) + " responses for " + std::to_string(t.response.size()) + " trials";
+        cal.reason = "not calibrated: " + why + ", and the estimators' errors cannot be measured on a model fitted to "
+                     "the responses seen; a coarser code (the count code, or fewer or wider bins) would help; the "
+                     "envelope interval of the estimators is in the JSON and CSV";
+        return cal;
+    }
+    if (cal.unlike_model.size() == which.size()) {
+        // No estimator's calibration can be trusted: no calibrated value, interval or trials needed.
+        cal.not_calibrated = true;
+        cal.recommended = closest_unlike;
+        const estimator_calibration& closest = cal.by_estimator.at(closest_unlike);
+        cal.value = NAN;
+        cal.error = closest.error;
+        cal.interval = {NAN, NAN};
+        cal.tolerance = q.floor_bits;
+        cal.uncertain = true;
+        cal.by_size.push_back({1, base, q.surrogates, closest.bias, closest.spread, closest.error});
+        cal.reason = "not calibrated: the record is unlike data drawn from the model fitted to it (every estimator's value "
+                     "lies beyond " + format_number(model_check_spreads) + " spreads of its values on the model's data sets; " +
+                     info_estimator_name(closest_unlike) + ": " + format_fixed(closest.estimate, 3) + " bits against " +
+                     format_fixed(cal.model_bits + closest.bias, 3) + " +- " + format_fixed(closest.spread, 3) + "), so its " +
+                     "estimators cannot be judged at this sample size; with " + std::to_string(distinct) +
+                     " distinct responses in " + std::to_string(t.response.size()) +
+                     " trials, a coarser code (the count code, or fewer or wider bins) would help; the envelope interval of "
+                     "the estimators is in the JSON and CSV";
+        return cal;
+    }
     const estimator_calibration& chosen = cal.by_estimator.at(cal.recommended);
     cal.value = chosen.estimate - chosen.bias;
     cal.error = chosen.error;
-    cal.t_quantile = calibrated_interval_factor(q.surrogates);
     cal.interval = {cal.value - cal.t_quantile * cal.error, cal.value + cal.t_quantile * cal.error};
     cal.tolerance = std::max(q.relative_tolerance * std::abs(cal.value), q.floor_bits);
     cal.uncertain = cal.error > cal.tolerance;
 
-    const double base = mean_trials(per_condition);
     cal.by_size.push_back({1, base, q.surrogates, chosen.bias, chosen.spread, chosen.error});
     std::vector<std::pair<double, double>> points{{base, chosen.error}};
     for (unsigned scale: {2u, 4u}) {

@@ -43,6 +43,7 @@ void add_time_course(const std::vector<stiminfo_record>& records, const stiminfo
         c.x = time;
         c.y = {"information", "bits", {}};
         for (const stiminfo_record* r: windows) {
+            if (r->calibration->not_calibrated) continue;  // no value to draw
             c.x.values.push_back(500 * (r->window.first + r->window.second));
             c.y.values.push_back(r->calibration->value);
             c.y_low.push_back(r->calibration->interval.first);

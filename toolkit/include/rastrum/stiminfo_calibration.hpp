@@ -103,6 +103,17 @@ struct stiminfo_calibration {
     /// Trials per condition at which the error would reach the tolerance (a / n^b fitted through
     /// by_size in log-log); absent when it does not within 4x the record's trials.
     std::optional<double> trials_per_condition_needed;
+    /// The estimators whose value on the record lies beyond 5 spreads (and the floor) of their
+    /// values on the surrogates: the model does not stand in for the record for them, and they are
+    /// not recommended. When that is every estimator, the record is not calibrated: value and
+    /// interval are NaN (null in the JSON), uncertain is true, `reason` says why and what would help,
+    /// and by_size holds the record's trials only.
+    std::vector<info_estimator> unlike_model;
+    bool not_calibrated = false;
+    std::string reason;
+    /// The responses' probability mass not seen in the record, by Good and Turing's estimate: the
+    /// share of trials whose response occurs once (Good 1953, Biometrika 40:237; from memory).
+    double unseen_mass = 0;
 };
 
 struct calibration_request {

@@ -13,18 +13,18 @@ namespace rastrum {
 
 namespace {
 
-/// Records whose caution is "uncertain": printed one by one when few, else in one line (below).
+/// Records whose caution is "uncertain" (or "not calibrated"): printed one by one when few, else in
+/// one line (below).
 constexpr std::size_t uncertain_listed_alone = 3;
 
 bool is_uncertain(const std::string& caution) { return caution.rfind("uncertain:", 0) == 0; }
+bool is_not_calibrated(const std::string& caution) { return caution.rfind("not calibrated:", 0) == 0; }
 
-/// One line for many uncertain records: which they are, unit by unit with their windows, and where
-/// each one's error and trials needed are. Each record's full sentence stays in the JSON and CSV;
-/// printed fifteen times over, three lines each, it hid every other caution of the table.
-std::string uncertain_summary(const std::vector<stiminfo_record>& records, std::size_t count) {
+/// The records with a caution of `kind`, unit by unit with their windows.
+std::string records_named(const std::vector<stiminfo_record>& records, bool (*kind)(const std::string&)) {
     std::vector<std::pair<std::string, std::string>> by_unit;  // unit, its windows
     for (const auto& r: records) {
-        if (std::none_of(r.warnings.begin(), r.warnings.end(), is_uncertain)) continue;
+        if (std::none_of(r.warnings.begin(), r.warnings.end(), kind)) continue;
         char window[64];
         std::snprintf(window, sizeof window, "%g-%g", r.window.first * 1000, r.window.second * 1000);
         auto it = std::find_if(by_unit.begin(), by_unit.end(), [&](const auto& u) { return u.first == r.unit; });
@@ -36,7 +36,21 @@ std::string uncertain_summary(const std::vector<stiminfo_record>& records, std::
     }
     std::string units;
     for (const auto& [unit, windows]: by_unit) units += (units.empty() ? "" : "; ") + unit + " at " + windows + " ms";
-    return "uncertain, " + std::to_string(count) + " of " + std::to_string(records.size()) + " records (" + units +
+    return units;
+}
+
+std::size_t records_with(const std::vector<stiminfo_record>& records, bool (*kind)(const std::string&)) {
+    return static_cast<std::size_t>(std::count_if(records.begin(), records.end(), [&](const stiminfo_record& r) {
+        return std::any_of(r.warnings.begin(), r.warnings.end(), kind);
+    }));
+}
+
+/// One line for many uncertain records: which they are and where each one's error and trials
+/// needed are. Each record's full sentence stays in the JSON and CSV; printed fifteen times over,
+/// three lines each, it hid every other caution of the table.
+std::string uncertain_summary(const std::vector<stiminfo_record>& records, std::size_t count) {
+    return "uncertain, " + std::to_string(count) + " of " + std::to_string(records.size()) + " records (" +
+           records_named(records, is_uncertain) +
            "): each calibrated error exceeds its tolerance (10% of the value, or 0.02 bits); the 95% interval "
            "shows the error and 'trials needed' the trials per condition that would meet it (each record's own "
            "caution is in the JSON and CSV); more trials per condition, a coarser code or a shorter window would help";
@@ -85,6 +99,8 @@ json calibration_json(const stiminfo_record& r) {
         sizes.push_back({{"scale", z.scale}, {"trials_per_condition", z.trials_per_condition}, {"surrogates", z.surrogates},
                          {"bias_bits", z.bias}, {"spread_bits", z.spread}, {"error_bits", z.error}});
     }
+    json unlike = json::array();
+    for (info_estimator e: c.unlike_model) unlike.push_back(info_estimator_name(e));
     return {{"surrogates", c.surrogates},
             {"model", c.smoothing == response_smoothing::variance_matched ? "shrunk toward the pooled responses, sized by the plug-in bias" : "raw frequencies"},
             {"shrinkage", c.shrinkage},
@@ -98,6 +114,9 @@ json calibration_json(const stiminfo_record& r) {
             {"ci95_bits", {c.interval.first, c.interval.second}},
             {"tolerance_bits", c.tolerance},
             {"uncertain", c.uncertain},
+            {"not_calibrated", c.not_calibrated},
+            {"unseen_mass", c.unseen_mass},
+            {"unlike_model", unlike},
             {"trials_per_condition_needed", c.trials_per_condition_needed ? json(*c.trials_per_condition_needed) : json(nullptr)},
             {"by_trials", sizes},
             {"by_estimator", by}};
@@ -167,7 +186,8 @@ nlohmann::ordered_json stiminfo_json(const std::vector<stiminfo_record>& records
              {"info_calibrated_bits", r.calibration ? json(r.calibration->value) : json(nullptr)},
              {"info_calibrated_ci95_bits", r.calibration ? json{r.calibration->interval.first, r.calibration->interval.second}
                                                          : json(nullptr)},
-             {"info_calibrated_estimator", r.calibration ? json(info_estimator_name(r.calibration->recommended)) : json(nullptr)},
+             {"info_calibrated_estimator", r.calibration && !r.calibration->not_calibrated
+                                                ? json(info_estimator_name(r.calibration->recommended)) : json(nullptr)},
              {"calibration", calibration_json(r)},
              {"few_trials", r.few_trials},
              {"mean_spikes", r.mean_spikes},
@@ -208,7 +228,8 @@ std::string stiminfo_csv(const std::vector<stiminfo_record>& records, const stim
         std::ostringstream calibrated;  // the record's calibration, after each row's estimator's own
         if (c) {
             calibrated << ',' << csv_number(c->value) << ',' << csv_number(c->interval.first) << ','
-                       << csv_number(c->interval.second) << ',' << info_estimator_name(c->recommended) << ','
+                       << csv_number(c->interval.second) << ','
+                       << (c->not_calibrated ? "" : info_estimator_name(c->recommended)) << ','
                        << (c->uncertain ? "true" : "false") << ','
                        << (c->trials_per_condition_needed ? csv_number(*c->trials_per_condition_needed) : "");
         } else {
@@ -304,9 +325,14 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
                 c.trials_per_condition_needed
                     ? format_number(std::ceil(*c.trials_per_condition_needed))
                     : "more than " + format_number(std::ceil(4 * c.by_size.front().trials_per_condition));
-            std::snprintf(line, sizeof line, " %10s %10s %11.4f  %-16s %-23s %s%s\n", subtracted, p_value, c.value,
-                          interval_text(true, c.interval.first, c.interval.second).c_str(),
-                          info_estimator_name(c.recommended), needed.c_str(), r.warnings.empty() ? "" : "  (!)");
+            if (c.not_calibrated) {
+                std::snprintf(line, sizeof line, " %10s %10s %11s  %-16s %-23s %s%s\n", subtracted, p_value, "-", "-", "-", "-",
+                              "  (!)");
+            } else {
+                std::snprintf(line, sizeof line, " %10s %10s %11.4f  %-16s %-23s %s%s\n", subtracted, p_value, c.value,
+                              interval_text(true, c.interval.first, c.interval.second).c_str(),
+                              info_estimator_name(c.recommended), needed.c_str(), r.warnings.empty() ? "" : "  (!)");
+            }
         } else {
             std::snprintf(line, sizeof line, " %10s  %-16s %10s%s\n", subtracted,
                           interval_text(intervals, r.interval.first, r.interval.second).c_str(), p_value,
@@ -357,19 +383,29 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
         any = true;
         s << "  every record: " << w << "\n";
     }
-    const auto uncertain = static_cast<std::size_t>(std::count_if(records.begin(), records.end(), [](const stiminfo_record& r) {
-        return std::any_of(r.warnings.begin(), r.warnings.end(), is_uncertain);
-    }));
+    const std::size_t uncertain = records_with(records, is_uncertain);
     const bool summarised = uncertain > uncertain_listed_alone;
     if (summarised) {
         if (!any) s << "\nCautions:\n";
         any = true;
         s << "  " << uncertain_summary(records, uncertain) << "\n";
     }
+    const std::size_t not_calibrated = records_with(records, is_not_calibrated);
+    const bool summarised_not = not_calibrated > uncertain_listed_alone;
+    if (summarised_not) {
+        if (!any) s << "\nCautions:\n";
+        any = true;
+        s << "  not calibrated, " << not_calibrated << " of " << records.size() << " records ("
+          << records_named(records, is_not_calibrated)
+          << "): each is unlike data drawn from the model fitted to it (every estimator's value lies far outside its "
+             "values on the model's data sets), so its estimators cannot be judged at this sample size; a coarser code "
+             "(the count code, or fewer or wider bins) would help (each record's own caution, with its figures, is in the "
+             "JSON and CSV)\n";
+    }
     for (const auto& r: records) {
         for (const auto& w: r.warnings) {
             if (std::find(shared.begin(), shared.end(), w) != shared.end()) continue;
-            if (summarised && is_uncertain(w)) continue;
+            if ((summarised && is_uncertain(w)) || (summarised_not && is_not_calibrated(w))) continue;
             if (!any) s << "\nCautions:\n";
             any = true;
             std::snprintf(line, sizeof line, "  %s at %g-%g ms: ", r.unit.c_str(), r.window.first * 1000, r.window.second * 1000);
