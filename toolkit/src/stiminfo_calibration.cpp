@@ -252,6 +252,11 @@ double mean_trials(const std::vector<std::size_t>& per_condition) {
     return live > 0 ? sum / live : 0;
 }
 
+std::string not_calibrated_because(const std::string& why) {
+    return "not calibrated: " + why + "; a coarser code (the count code, or fewer or wider bins) would help; the envelope "
+           "interval of the estimators is in the JSON and CSV";
+}
+
 }  // namespace
 
 stiminfo_calibration calibrate_stiminfo(const labelled_responses& t, const std::map<info_estimator, double>& estimates,
@@ -262,6 +267,40 @@ stiminfo_calibration calibrate_stiminfo(const labelled_responses& t, const std::
     cal.smoothing = q.smoothing;
     std::vector<std::size_t> per_condition(t.conditions, 0);
     for (std::uint32_t c: t.condition) ++per_condition[c];
+    cal.t_quantile = calibrated_interval_factor(q.surrogates);
+
+    // Most trials' responses are their own (every estimator then sits near its ceiling whatever the
+    // truth: all distinct, plug-in = H(S)), or much of the responses' mass lies on responses never
+    // seen, in an alphabet far larger than the trials: a model over the responses seen leaves that
+    // mass out, its data sets repeat responses more often than the record's, and the estimators'
+    // errors measured on them come out too small (notes/methods-calibration.md, "When the model
+    // cannot stand in for the record"). Such a record is declined before any surrogate is drawn.
+    std::map<word_code, std::size_t> seen;
+    for (word_code r: t.response) ++seen[r];
+    const std::size_t distinct = seen.size();
+    const double trials = static_cast<double>(t.response.size());
+    cal.unseen_mass = static_cast<double>(std::count_if(seen.begin(), seen.end(), [](const auto& r) { return r.second == 1; })) / trials;
+    const std::string measured_on = ", and the estimators' errors cannot be measured on a model fitted to the responses seen";
+    std::string why;
+    if (2 * distinct > t.response.size()) {
+        why = std::to_string(distinct) + " of the " + std::to_string(t.response.size()) +
+              " trials' responses are distinct (more than half), so the estimators sit near their ceiling whatever the "
+              "truth" + measured_on;
+    } else if (cal.unseen_mass > max_unseen_mass && t.alphabet > alphabet_per_trial * trials) {
+        why = "about " + format_fixed(100 * cal.unseen_mass, 0) + "% of the responses' probability lies on responses never "
+              "seen (the share of trials whose response occurs once), in an alphabet of " + format_number(t.alphabet) +
+              " responses for " + std::to_string(t.response.size()) + " trials" + measured_on;
+    }
+    if (!why.empty()) {
+        cal.not_calibrated = true;
+        cal.uncertain = true;
+        cal.value = cal.error = cal.first_model_bits = cal.first_plugin_bias = cal.model_bits = NAN;
+        cal.interval = {NAN, NAN};
+        cal.tolerance = q.floor_bits;
+        cal.reason = not_calibrated_because(why);
+        return cal;
+    }
+
     response_model model(t, q.smoothing);
     cal.first_model_bits = model.information();
     if (q.smoothing == response_smoothing::variance_matched) {
@@ -304,55 +343,25 @@ stiminfo_calibration calibrate_stiminfo(const labelled_responses& t, const std::
             cal.recommended = e;
         }
     }
-    cal.t_quantile = calibrated_interval_factor(q.surrogates);
     const double base = mean_trials(per_condition);
-    std::map<word_code, std::size_t> seen;
-    for (word_code r: t.response) ++seen[r];
-    const std::size_t distinct = seen.size();
-    const double trials = static_cast<double>(t.response.size());
-    cal.unseen_mass = static_cast<double>(std::count_if(seen.begin(), seen.end(), [](const auto& r) { return r.second == 1; })) / trials;
-    // No calibrated value, interval or trials needed; `shown`'s measurements stay in the record.
-    auto decline = [&](info_estimator shown, const std::string& why) {
+    if (cal.unlike_model.size() == which.size()) {
+        // No calibrated value, interval or trials needed; the closest estimator's measurements stay.
+        const estimator_calibration& closest = cal.by_estimator.at(closest_unlike);
         cal.not_calibrated = true;
-        cal.recommended = shown;
-        const estimator_calibration& e = cal.by_estimator.at(shown);
+        cal.uncertain = true;
+        cal.recommended = closest_unlike;
         cal.value = NAN;
-        cal.error = e.error;
+        cal.error = closest.error;
         cal.interval = {NAN, NAN};
         cal.tolerance = q.floor_bits;
-        cal.uncertain = true;
-        cal.by_size.push_back({1, base, q.surrogates, e.bias, e.spread, e.error});
-        cal.reason = "not calibrated: " + why + "; a coarser code (the count code, or fewer or wider bins) would help; the "
-                     "envelope interval of the estimators is in the JSON and CSV";
+        cal.by_size.push_back({1, base, q.surrogates, closest.bias, closest.spread, closest.error});
+        cal.reason = not_calibrated_because(
+            "the record is unlike data drawn from the model fitted to it (every estimator's value lies beyond " +
+            format_number(model_check_spreads) + " spreads of its values on the model's data sets; " +
+            info_estimator_name(closest_unlike) + ": " + format_fixed(closest.estimate, 3) + " bits against " +
+            format_fixed(cal.model_bits + closest.bias, 3) + " +- " + format_fixed(closest.spread, 3) +
+            "), so its estimators cannot be judged at this sample size");
         return cal;
-    };
-    // Most trials' responses are their own (every estimator then sits near its ceiling whatever the
-    // truth: all distinct, plug-in = H(S)), or much of the responses' mass lies on responses never
-    // seen, in an alphabet far larger than the trials: a model over the responses seen leaves that
-    // mass out, its data sets repeat responses more often than the record's, and the estimators'
-    // errors measured on them come out too small (notes/methods-calibration.md, "When the model
-    // cannot stand in for the record").
-    const std::string measured_on = ", and the estimators' errors cannot be measured on a model fitted to the responses seen";
-    if (2 * distinct > t.response.size()) {
-        return decline(cal.recommended, std::to_string(distinct) + " of the " + std::to_string(t.response.size()) +
-                                            " trials' responses are distinct (more than half), so the estimators sit near "
-                                            "their ceiling whatever the truth" + measured_on);
-    }
-    if (cal.unseen_mass > max_unseen_mass && t.alphabet > alphabet_per_trial * trials) {
-        return decline(cal.recommended, "about " + format_fixed(100 * cal.unseen_mass, 0) +
-                                            "% of the responses' probability lies on responses never seen (the share of "
-                                            "trials whose response occurs once), in an alphabet of " + format_number(t.alphabet) +
-                                            " responses for " + std::to_string(t.response.size()) + " trials" + measured_on);
-    }
-    if (cal.unlike_model.size() == which.size()) {
-        const estimator_calibration& closest = cal.by_estimator.at(closest_unlike);
-        return decline(closest_unlike, "the record is unlike data drawn from the model fitted to it (every estimator's value "
-                                       "lies beyond " + format_number(model_check_spreads) + " spreads of its values on the "
-                                       "model's data sets; " + info_estimator_name(closest_unlike) + ": " +
-                                       format_fixed(closest.estimate, 3) + " bits against " +
-                                       format_fixed(cal.model_bits + closest.bias, 3) + " +- " +
-                                       format_fixed(closest.spread, 3) + "), so its estimators cannot be judged at this "
-                                       "sample size");
     }
     const estimator_calibration& chosen = cal.by_estimator.at(cal.recommended);
     cal.value = chosen.estimate - chosen.bias;

@@ -107,7 +107,7 @@ json calibration_json(const stiminfo_record& r) {
             {"first_model_bits", c.first_model_bits},
             {"first_plugin_bias_bits", c.first_plugin_bias},
             {"model_bits", c.model_bits},
-            {"recommended_estimator", info_estimator_name(c.recommended)},
+            {"recommended_estimator", c.by_estimator.count(c.recommended) ? json(info_estimator_name(c.recommended)) : json(nullptr)},
             {"value_bits", c.value},
             {"error_bits", c.error},
             {"t_quantile", c.t_quantile},
@@ -236,7 +236,8 @@ std::string stiminfo_csv(const std::vector<stiminfo_record>& records, const stim
             calibrated << ",,,,,,";
         }
         for (const auto& [e, v]: r.info_bits) {
-            const estimator_calibration* ec = c ? &c->by_estimator.at(e) : nullptr;
+            const auto measured = c ? c->by_estimator.find(e) : decltype(c->by_estimator.end()){};
+            const estimator_calibration* ec = c && measured != c->by_estimator.end() ? &measured->second : nullptr;
             s << csv_text(r.unit) << ',' << csv_number(r.window.first * 1000) << ',' << csv_number(r.window.second * 1000)
               << ',' << response_code_name(q.response.code) << ','
               << (q.response.code == response_code::spike_count ? "" : csv_number(q.response.bin_width * 1000)) << ','
@@ -321,14 +322,14 @@ std::string stiminfo_table(const std::vector<stiminfo_record>& records, const st
         }
         if (r.calibration) {
             const auto& c = *r.calibration;
-            const std::string needed =
-                c.trials_per_condition_needed
-                    ? format_number(std::ceil(*c.trials_per_condition_needed))
-                    : "more than " + format_number(std::ceil(4 * c.by_size.front().trials_per_condition));
             if (c.not_calibrated) {
                 std::snprintf(line, sizeof line, " %10s %10s %11s  %-16s %-23s %s%s\n", subtracted, p_value, "-", "-", "-", "-",
                               "  (!)");
             } else {
+                const std::string needed =
+                    c.trials_per_condition_needed
+                        ? format_number(std::ceil(*c.trials_per_condition_needed))
+                        : "more than " + format_number(std::ceil(4 * c.by_size.front().trials_per_condition));
                 std::snprintf(line, sizeof line, " %10s %10s %11.4f  %-16s %-23s %s%s\n", subtracted, p_value, c.value,
                               interval_text(true, c.interval.first, c.interval.second).c_str(),
                               info_estimator_name(c.recommended), needed.c_str(), r.warnings.empty() ? "" : "  (!)");
