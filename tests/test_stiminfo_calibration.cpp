@@ -232,3 +232,39 @@ TEST(stiminfo_calibration, off_and_refused) {
     EXPECT_FALSE(run_stiminfo(rec, calibrated_request(0)).at(0).calibration.has_value());
     EXPECT_THROW(check_stiminfo_request(calibrated_request(1)), usage_error);
 }
+
+// The posterior predictive check (notes/methods-calibration.md, "When the model cannot stand in for
+// the record"): an estimate far outside its estimator's values on the surrogates is listed as unlike
+// the model and never recommended; when every estimate is, the record is not calibrated. The record's
+// estimates are given here, so the check can be made to fire: -11 bits for NSB is what NSB gave on
+// binary words of 50 letters, far from anything four conditions of counts can carry (information is
+// at least 0 and at most H(S) = 2 bits: Cover & Thomas 2006, theorem 2.6.5, from memory).
+TEST(stiminfo_calibration, an_estimate_unlike_the_models_data_is_never_recommended) {
+    const labelled_responses t = trials_of({{0, 1, 1, 2, 0, 1, 3, 2, 1, 0, 2, 1}, {2, 3, 4, 3, 2, 5, 4, 3, 3, 4, 2, 3},
+                                            {5, 6, 4, 7, 5, 6, 8, 5, 6, 7, 4, 6}, {8, 9, 7, 10, 9, 8, 11, 9, 8, 10, 9, 7}},
+                                           12);
+    info_settings settings;
+    std::map<info_estimator, double> estimates;
+    for (info_estimator e: all_info_estimators) estimates[e] = stimulus_information(t, e, settings);
+    calibration_request q;
+    q.surrogates = q.scaled_surrogates = 10;
+    const stiminfo_calibration plain = calibrate_stiminfo(t, estimates, settings, q);
+    ASSERT_FALSE(plain.not_calibrated);
+    EXPECT_TRUE(plain.unlike_model.empty()) << "the record's own estimates look like the surrogates'";
+    // The recommended estimator's value made absurd: it is flagged, and another is recommended.
+    std::map<info_estimator, double> odd = estimates;
+    odd[plain.recommended] = -11;
+    const stiminfo_calibration flagged = calibrate_stiminfo(t, odd, settings, q);
+    ASSERT_EQ(flagged.unlike_model, std::vector<info_estimator>{plain.recommended});
+    EXPECT_NE(flagged.recommended, plain.recommended);
+    EXPECT_FALSE(flagged.not_calibrated);
+    EXPECT_TRUE(std::isfinite(flagged.value));
+    // Every value absurd: not calibrated, no value or interval, a reason that says so.
+    for (auto& [e, v]: odd) v = -11;
+    const stiminfo_calibration none = calibrate_stiminfo(t, odd, settings, q);
+    EXPECT_TRUE(none.not_calibrated);
+    EXPECT_TRUE(none.uncertain);
+    EXPECT_EQ(none.unlike_model.size(), estimates.size());
+    EXPECT_TRUE(std::isnan(none.value) && std::isnan(none.interval.first) && std::isnan(none.interval.second));
+    EXPECT_NE(uncertain_caution(none).find("not calibrated: the record is unlike data drawn from the model"), std::string::npos);
+}
