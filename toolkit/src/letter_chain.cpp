@@ -19,6 +19,31 @@ double entropy_bits(const double* p, std::size_t n) {
     return h;
 }
 
+/// One letter more on each word of `size` (a table of probabilities whose first `silent_block` words
+/// end in a silent letter), in place, into the table's first size * alphabet entries.
+void grow_words(std::size_t alphabet, double* words, std::size_t size, std::size_t silent_block, const double* silent,
+                const double* spiking) {
+    // Word w of the grown table is (newest letter a) * size + (older word); highest a first, so that
+    // the older words are read before the block of a = 0 overwrites them in place.
+    for (std::size_t a = alphabet; a-- > 0;) {
+        double* out = words + a * size;
+        const double after_silent = silent[a], after_spike = spiking[a];
+        for (std::size_t w = 0; w < silent_block; ++w) out[w] = words[w] * after_silent;
+        for (std::size_t w = silent_block; w < size; ++w) out[w] = words[w] * after_spike;
+    }
+}
+
+/// The same, added into `sums` instead of stored.
+void add_grown_words(std::size_t alphabet, const double* words, std::size_t size, std::size_t silent_block,
+                     const double* silent, const double* spiking, double* sums) {
+    for (std::size_t a = 0; a < alphabet; ++a) {
+        double* out = sums + a * size;
+        const double after_silent = silent[a], after_spike = spiking[a];
+        for (std::size_t w = 0; w < silent_block; ++w) out[w] += words[w] * after_silent;
+        for (std::size_t w = silent_block; w < size; ++w) out[w] += words[w] * after_spike;
+    }
+}
+
 }  // namespace
 
 letter_chain::letter_chain(const sparse_letters& letters, std::optional<double> pseudo_trials)
@@ -198,38 +223,16 @@ letter_chain::word_entropies letter_chain::entropies(int letters_per_word) const
         if (L == 1) continue;
         std::size_t size = A, silent_block = 1;  // words of j + 1 letters; those ending silent
         for (std::size_t j = 1; j + 1 < L; ++j) {
-            grow_words(one.data(), size, silent_block, distribution(t + j, 0), distribution(t + j, 1));
+            grow_words(A, one.data(), size, silent_block, distribution(t + j, 0), distribution(t + j, 1));
             silent_block = size;
             size *= A;
         }
-        add_grown_words(one.data(), size, silent_block, distribution(t + L - 1, 0), distribution(t + L - 1, 1),
+        add_grown_words(A, one.data(), size, silent_block, distribution(t + L - 1, 0), distribution(t + L - 1, 1),
                         pooled.data());
     }
     for (double& x: pooled) x /= static_cast<double>(positions);
     out.total = entropy_bits(pooled.data(), words);
     return out;
-}
-
-void letter_chain::grow_words(double* words, std::size_t size, std::size_t silent_block, const double* silent,
-                              const double* spiking) const {
-    // Word w of the grown table is (newest letter a) * size + (older word); highest a first, so that
-    // the older words are read before the block of a = 0 overwrites them in place.
-    for (std::size_t a = alphabet_; a-- > 0;) {
-        double* out = words + a * size;
-        const double after_silent = silent[a], after_spike = spiking[a];
-        for (std::size_t w = 0; w < silent_block; ++w) out[w] = words[w] * after_silent;
-        for (std::size_t w = silent_block; w < size; ++w) out[w] = words[w] * after_spike;
-    }
-}
-
-void letter_chain::add_grown_words(const double* words, std::size_t size, std::size_t silent_block,
-                                   const double* silent, const double* spiking, double* sums) const {
-    for (std::size_t a = 0; a < alphabet_; ++a) {
-        double* out = sums + a * size;
-        const double after_silent = silent[a], after_spike = spiking[a];
-        for (std::size_t w = 0; w < silent_block; ++w) out[w] += words[w] * after_silent;
-        for (std::size_t w = silent_block; w < size; ++w) out[w] += words[w] * after_spike;
-    }
 }
 
 void letter_chain::draw(std::size_t trials, std::uint64_t seed, sparse_letters& out) const {

@@ -9,7 +9,6 @@
 #include <algorithm>
 #include <cmath>
 #include <numeric>
-#include <set>
 
 namespace rastrum {
 
@@ -20,7 +19,7 @@ constexpr std::uint64_t surrogate_draw_tag = 0x57ca1d7a0ULL;
 constexpr std::uint64_t surrogate_split_tag = 0x57ca1d7a1ULL;
 // An estimator whose value on the record lies further than this many spreads (of one more surrogate)
 // from its mean on the surrogates is not calibrated by them (about 1 in 1,000 for a t with 9 degrees
-// of freedom; notes/methods-calibration.md, "When the model is unlike the record").
+// of freedom; notes/methods-calibration.md, "When the model cannot stand in for the record").
 constexpr double model_check_spreads = 5;
 // The calibration declines a record whose unseen mass (Good-Turing) exceeds this in an alphabet of
 // more than alphabet_per_trial responses per trial: measured where the model fails (binary words of

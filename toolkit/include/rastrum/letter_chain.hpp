@@ -68,14 +68,6 @@ private:
     std::vector<double> spiking_;  // probability that bin t holds a spike, over trials
     std::vector<double> letter_entropy_;       // H(X_t), bits
     std::vector<double> conditional_entropy_;  // H(X_t | whether bin t - 1 spiked), bits
-
-    // One letter more on each word of `size` (a table of probabilities whose first `silent_block`
-    // words end in a silent letter): in place, into the table's first size * alphabet entries.
-    void grow_words(double* words, std::size_t size, std::size_t silent_block, const double* silent,
-                    const double* spiking) const;
-    // The same, added into `sums` instead of stored.
-    void add_grown_words(const double* words, std::size_t size, std::size_t silent_block, const double* silent,
-                         const double* spiking, double* sums) const;
 };
 
 }  // namespace rastrum
